@@ -1,0 +1,3 @@
+from corpusaudit.cli import main
+
+raise SystemExit(main())

@@ -1,0 +1,120 @@
+"""Command line: parses arguments and calls the library. Exit codes per design.md."""
+
+from __future__ import annotations
+
+import argparse
+import logging
+import os
+import sys
+from pathlib import Path
+
+from corpusaudit import __version__
+
+EXIT_OK = 0
+EXIT_FINDINGS = 1
+EXIT_USAGE = 2
+SEVERITY_FOR_FAIL = {"error": 3, "warning": 2}
+
+
+def _parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(prog="corpusaudit", description="Audit the figures of a corpus of PDFs and images.")
+    parser.add_argument("--version", action="version", version=f"corpusaudit {__version__}")
+    commands = parser.add_subparsers(dest="command", required=True)
+
+    audit = commands.add_parser("audit", help="audit PDFs, images, folders and .zip archives")
+    audit.add_argument("inputs", nargs="+", metavar="INPUT")
+    audit.add_argument("--out", required=True, type=Path, metavar="DIR")
+    _add_run_options(audit)
+
+    commands.add_parser("rules", help="list every rule with its thresholds and rationale")
+
+    demo = commands.add_parser("demo", help="audit the bundled sample corpus (building it when absent)")
+    demo.add_argument("--out", required=True, type=Path, metavar="DIR")
+    _add_run_options(demo, manifest=False)
+    return parser
+
+
+def _add_run_options(command: argparse.ArgumentParser, manifest: bool = True) -> None:
+    command.add_argument("--jobs", type=int, default=1, metavar="N", help="worker processes (default 1)")
+    command.add_argument("--config", type=Path, metavar="FILE", help="TOML configuration")
+    if manifest:
+        command.add_argument("--manifest", type=Path, metavar="CSV", help="CSV with a path column and group columns")
+    command.add_argument("--dpi", type=int, metavar="N", help="render resolution for figures (default 150)")
+    command.add_argument("--fail-on", choices=("error", "warning"), help="exit 1 when a finding reaches this severity")
+    command.add_argument("--no-cache", action="store_true", help="reprocess documents already in the store")
+    command.add_argument("--quiet", action="store_true", help="print nothing but errors")
+
+
+def _print_rules() -> None:
+    from corpusaudit.checks.registry import all_rules
+
+    for rule in all_rules():
+        applies = "any chart" if rule.applies_to == ("*",) else ", ".join(rule.applies_to)
+        print(f"{rule.id}  [{rule.severity}]  applies to: {applies}; sources: {', '.join(rule.sources)}"
+              + ("" if rule.status == "stable" else f"  ({rule.status})"))
+        for option in rule.options:
+            print(f"    {option.key} = {option.default}: {option.help} (source: {option.source})")
+        print(f"    why: {rule.rationale}")
+        print(f"    fix: {rule.fix}")
+        print()
+
+
+def _run_audit(args: argparse.Namespace, inputs: list[str], manifest: Path | None) -> int:
+    from corpusaudit.config import ConfigError, load_config
+    from corpusaudit.run import audit
+
+    try:
+        config = load_config(args.config, {"dpi": args.dpi} if args.dpi else None)
+    except ConfigError as exc:
+        print(f"corpusaudit: {exc}", file=sys.stderr)
+        return EXIT_USAGE
+    if not any(os.path.lexists(path) for path in inputs):
+        print(f"corpusaudit: no such input: {', '.join(inputs)}", file=sys.stderr)
+        return EXIT_USAGE
+    if manifest is not None and not manifest.is_file():
+        print(f"corpusaudit: manifest {manifest} not found", file=sys.stderr)
+        return EXIT_USAGE
+    try:
+        summary = audit(inputs, args.out, config, jobs=max(1, args.jobs), manifest=manifest,
+                        use_cache=not args.no_cache)
+    except ValueError as exc:
+        print(f"corpusaudit: {exc}", file=sys.stderr)
+        return EXIT_USAGE
+    if not args.quiet:
+        statuses = ", ".join(f"{n} {s}" for s, n in sorted(summary.statuses.items()))
+        severities = ", ".join(f"{n} {s}" for s, n in sorted(summary.findings_by_severity.items())) or "none"
+        print(f"documents: {statuses or 'none'}; figures: {summary.figures}; findings: {severities}; "
+              f"reused from cache: {summary.reused}; {summary.elapsed_s:.1f} s", file=sys.stderr)
+        print(f"report: {summary.out_dir / 'report.html'}", file=sys.stderr)
+    if not summary.statuses:
+        print("corpusaudit: no input files found", file=sys.stderr)
+        return EXIT_USAGE
+    if args.fail_on and summary.worst_severity_rank() >= SEVERITY_FOR_FAIL[args.fail_on]:
+        return EXIT_FINDINGS
+    return EXIT_OK
+
+
+def _demo(args: argparse.Namespace) -> int:
+    from corpusaudit.democorpus.build import build_sample_corpus
+
+    bundled = Path(__file__).resolve().parents[1] / "sample_corpus"
+    if not (bundled / "truth.json").is_file():
+        bundled = args.out / "sample_corpus"
+        build_sample_corpus(bundled)
+    try:
+        shown = Path(os.path.relpath(bundled))
+    except ValueError:  # another drive on Windows
+        shown = bundled
+    manifest = shown / "manifest.csv"
+    return _run_audit(args, [str(shown)], manifest if manifest.is_file() else None)
+
+
+def main(argv: list[str] | None = None) -> int:
+    args = _parser().parse_args(argv)
+    logging.basicConfig(level=logging.WARNING, format="corpusaudit: %(levelname)s: %(message)s")
+    if args.command == "rules":
+        _print_rules()
+        return EXIT_OK
+    if args.command == "demo":
+        return _demo(args)
+    return _run_audit(args, args.inputs, args.manifest)
