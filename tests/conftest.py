@@ -1,0 +1,40 @@
+"""Shared fixture builders: small PDFs and images generated in code with known truth."""
+
+from __future__ import annotations
+
+import io
+from pathlib import Path
+
+import numpy as np
+import pymupdf
+import pytest
+from PIL import Image
+
+
+def png_bytes(width: int, height: int, seed: int = 0) -> bytes:
+    rng = np.random.default_rng(seed)
+    pixels = (rng.random((height, width, 3)) * 255).astype(np.uint8)
+    buffer = io.BytesIO()
+    Image.fromarray(pixels).save(buffer, "PNG")
+    return buffer.getvalue()
+
+
+def pdf_with_rasters(path: Path, ppis: list[int], caption: bool = True) -> Path:
+    """One page per ppi, each with a 4 x 3 inch image placed at exactly that effective ppi."""
+    doc = pymupdf.open()
+    for number, ppi in enumerate(ppis):
+        page = doc.new_page()
+        rect = pymupdf.Rect(72, 72, 72 + 4 * 72, 72 + 3 * 72)
+        page.insert_image(rect, stream=png_bytes(4 * ppi, 3 * ppi, seed=number))
+        if caption:
+            page.insert_text((72, rect.y1 + 16), f"Figure {number + 1}. Catch per station at {ppi} ppi.", fontsize=10)
+    doc.save(path)
+    doc.close()
+    return path
+
+
+@pytest.fixture
+def make_pdf(tmp_path):
+    def build(name: str, ppis: list[int], caption: bool = True) -> Path:
+        return pdf_with_rasters(tmp_path / name, ppis, caption)
+    return build
