@@ -35,7 +35,17 @@ def _parser() -> argparse.ArgumentParser:
 
 
 def _add_run_options(command: argparse.ArgumentParser, manifest: bool = True) -> None:
-    command.add_argument("--jobs", type=int, default=1, metavar="N", help="worker processes (default 1)")
+    command.add_argument("--jobs", type=int, default=os.cpu_count() or 1, metavar="N",
+                         help="worker processes (default: the number of cores)")
+    command.add_argument("--timeout", type=float, default=120.0, metavar="S",
+                         help="time limit per document in seconds (default 120)")
+    command.add_argument("--memory-limit", type=int, default=2048, metavar="MB",
+                         help="resident memory ceiling per worker (default 2048)")
+    command.add_argument("--password-file", type=Path, metavar="FILE",
+                         help="passwords to try on encrypted PDFs, one per line")
+    command.add_argument("--executor", choices=("local", "dask"), default="local",
+                         help="run documents locally or on a Dask cluster (needs corpusaudit[dask])")
+    command.add_argument("--scheduler", default="", metavar="ADDRESS", help="Dask scheduler address")
     command.add_argument("--config", type=Path, metavar="FILE", help="TOML configuration")
     if manifest:
         command.add_argument("--manifest", type=Path, metavar="CSV", help="CSV with a path column and group columns")
@@ -61,11 +71,16 @@ def _print_rules() -> None:
 
 def _run_audit(args: argparse.Namespace, inputs: list[str], manifest: Path | None) -> int:
     from corpusaudit.config import ConfigError, load_config
-    from corpusaudit.run import audit
+    from corpusaudit.distributed import DaskUnavailable
+    from corpusaudit.run import RunOptions, audit
 
+    overrides: dict = {"dpi": args.dpi} if args.dpi else {}
     try:
-        config = load_config(args.config, {"dpi": args.dpi} if args.dpi else None)
-    except ConfigError as exc:
+        if args.password_file:
+            lines = args.password_file.read_text(encoding="utf-8").splitlines()
+            overrides["passwords"] = tuple(line for line in lines if line)
+        config = load_config(args.config, overrides)
+    except (ConfigError, OSError) as exc:
         print(f"corpusaudit: {exc}", file=sys.stderr)
         return EXIT_USAGE
     if not any(os.path.lexists(path) for path in inputs):
@@ -74,17 +89,19 @@ def _run_audit(args: argparse.Namespace, inputs: list[str], manifest: Path | Non
     if manifest is not None and not manifest.is_file():
         print(f"corpusaudit: manifest {manifest} not found", file=sys.stderr)
         return EXIT_USAGE
+    options = RunOptions(jobs=max(1, args.jobs), time_limit_s=args.timeout, memory_limit_mb=args.memory_limit,
+                         use_cache=not args.no_cache, executor=args.executor, scheduler=args.scheduler,
+                         quiet=args.quiet)
     try:
-        summary = audit(inputs, args.out, config, jobs=max(1, args.jobs), manifest=manifest,
-                        use_cache=not args.no_cache)
-    except ValueError as exc:
+        summary = audit(inputs, args.out, config, options, manifest=manifest)
+    except (ValueError, DaskUnavailable) as exc:
         print(f"corpusaudit: {exc}", file=sys.stderr)
         return EXIT_USAGE
     if not args.quiet:
         statuses = ", ".join(f"{n} {s}" for s, n in sorted(summary.statuses.items()))
         severities = ", ".join(f"{n} {s}" for s, n in sorted(summary.findings_by_severity.items())) or "none"
         print(f"documents: {statuses or 'none'}; figures: {summary.figures}; findings: {severities}; "
-              f"reused from cache: {summary.reused}; {summary.elapsed_s:.1f} s", file=sys.stderr)
+              f"reused from cache: {summary.reused}; elapsed {summary.elapsed_s:.1f} s", file=sys.stderr)
         print(f"report: {summary.out_dir / 'report.html'}", file=sys.stderr)
     if not summary.statuses:
         print("corpusaudit: no input files found", file=sys.stderr)

@@ -67,6 +67,11 @@ def _id_for_path(display: str) -> str:
     return "x" + hashlib.sha256(display.encode("utf-8", "surrogateescape")).hexdigest()[:11]
 
 
+def printable_path(name: str) -> str:
+    """A path as text: bytes that are not UTF-8 (kept as surrogates by the OS layer) become \\xNN."""
+    return os.fsencode(name).decode("utf-8", "backslashreplace")
+
+
 def _problem(display: str, status: str, reason: str, size: int = 0, sha: str = "") -> Document:
     return Document(document_id=_id_for_path(display), path=display, sha256=sha, bytes=size,
                     kind="unknown", status=status, error=reason)
@@ -174,7 +179,7 @@ def _walk(root: Path, display_root: str, exclude: Path | None) -> list[tuple[Pat
         for name in sorted(filenames):
             local = Path(dirpath) / name
             rel = os.path.relpath(local, root)
-            found.append((local, os.path.join(display_root, rel)))
+            found.append((local, printable_path(os.path.join(display_root, rel))))
     return found
 
 
@@ -197,9 +202,9 @@ def discover(inputs: list[str], scratch: Path, limits: ArchiveLimits = ArchiveLi
         if path.is_dir():
             candidates.extend(_walk(path, given, exclude))
         elif path.exists() or path.is_symlink():
-            candidates.append((path, given))
+            candidates.append((path, printable_path(given)))
         else:
-            docs.append(_problem(given, "error", "no such file or directory"))
+            docs.append(_problem(printable_path(given), "error", "no such file or directory"))
     for local, display in candidates:
         try:
             mode = local.stat().st_mode

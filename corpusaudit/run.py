@@ -4,13 +4,13 @@ store each document's result as it finishes, and write the reports from the stor
 from __future__ import annotations
 
 import csv
+import io
 import logging
 import os
 import time
-from concurrent.futures import ProcessPoolExecutor, as_completed
-from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import Iterator
 
 import numpy as np
 from PIL import Image
@@ -23,14 +23,29 @@ from corpusaudit.discover import clear_scratch, discover
 from corpusaudit.extract import ExtractError, extract_document
 from corpusaudit.measure import Measurements
 from corpusaudit.model import SEVERITY_RANK, Document, Figure, Finding
+from corpusaudit.progress import Progress
 from corpusaudit.report.html import write_report
 from corpusaudit.report.tables import write_tables
 from corpusaudit.rows import document_row, figure_row, finding_row
 from corpusaudit.store import cached_document, load_rows, open_store, rename_document, save_document
+from corpusaudit.workers import Failure, run_pool
 
 log = logging.getLogger(__name__)
 THUMBNAIL_PX = 360
 DETAIL_PX = 1400
+
+
+@dataclass(frozen=True)
+class RunOptions:
+    jobs: int = 1
+    time_limit_s: float = 120.0  # per document
+    memory_limit_mb: int = 2048  # resident memory per worker
+    use_cache: bool = True
+    inline: bool = False  # run in this process: no limits, for debugging and --strict
+    strict: bool = False  # re-raise rule errors instead of recording them
+    executor: str = "local"  # local | dask
+    scheduler: str = ""  # dask scheduler address
+    quiet: bool = False
 
 
 @dataclass
@@ -38,6 +53,7 @@ class DocumentResult:
     doc: Document
     figures: list[dict]
     findings: list[dict]
+    images: dict[str, bytes] = field(default_factory=dict)  # asset file name -> PNG bytes
     decorations: int = 0
 
 
@@ -49,15 +65,18 @@ class AuditSummary:
     findings_by_severity: dict[str, int] = field(default_factory=dict)
     reused: int = 0
     elapsed_s: float = 0.0
+    peak_worker_rss: int = 0
 
     def worst_severity_rank(self) -> int:
         return max((SEVERITY_RANK[s] for s, n in self.findings_by_severity.items() if n), default=0)
 
 
-def _save_image(pixels: np.ndarray, path: Path, max_side: int) -> None:
+def _png(pixels: np.ndarray, max_side: int) -> bytes:
     image = Image.fromarray(pixels)
     image.thumbnail((max_side, max_side), Image.Resampling.LANCZOS)
-    image.save(path, optimize=True)
+    buffer = io.BytesIO()
+    image.save(buffer, "PNG", optimize=True)
+    return buffer.getvalue()
 
 
 def _classify(figure: Figure, classifier: Classifier | None, config: Config) -> None:
@@ -78,10 +97,10 @@ def _classifier() -> Classifier | None:
     return _WORKER_CLASSIFIER["model"]
 
 
-def process_document(doc: Document, config: Config, assets: Path, strict: bool = False) -> DocumentResult:
+def process_document(doc: Document, config: Config, strict: bool = False) -> DocumentResult:
     """Everything for one document; a failure costs this document only, never the batch."""
     try:
-        return _process(doc, config, assets, strict)
+        return _process(doc, config, strict)
     except ExtractError as exc:
         doc.status, doc.error = "error", str(exc)
     except Exception as exc:
@@ -93,30 +112,35 @@ def process_document(doc: Document, config: Config, assets: Path, strict: bool =
     return DocumentResult(doc, [], [])
 
 
-def _process(doc: Document, config: Config, assets: Path, strict: bool) -> DocumentResult:
-    """Pure apart from writing its figure images to assets/."""
+def process_task(task: tuple[Document, Config, bool]) -> DocumentResult:
+    """process_document for a worker process or a cluster: one picklable argument."""
+    return process_document(*task)
+
+
+def _process(doc: Document, config: Config, strict: bool) -> DocumentResult:
+    """Pure: figure images come back as PNG bytes for the caller to write."""
     extracted = extract_document(doc, config.extract)
     doc.pages = extracted.pages
     if extracted.errors:
         doc.error = "; ".join(extracted.errors)
     classifier = _classifier()
-    figure_rows, finding_rows = [], []
+    result = DocumentResult(doc, [], [], decorations=extracted.decorations)
     for figure in extracted.figures:
         _classify(figure, classifier, config)
         results, figure.unmeasured = check_figure(figure, config, Measurements(figure), strict=strict)
         if figure.pixels is not None:
-            _save_image(figure.pixels, assets / f"{figure.figure_id}.png", THUMBNAIL_PX)
-            _save_image(figure.pixels, assets / f"{figure.figure_id}.full.png", DETAIL_PX)
+            result.images[f"{figure.figure_id}.png"] = _png(figure.pixels, THUMBNAIL_PX)
+            result.images[f"{figure.figure_id}.full.png"] = _png(figure.pixels, DETAIL_PX)
             figure.thumbnail = f"assets/{figure.figure_id}.png"
-        for number, result in enumerate(results):
-            finding_rows.append(finding_row(Finding(
-                finding_id=f"{figure.figure_id}-{result.rule}-{number}", figure_id=figure.figure_id,
-                document_id=doc.document_id, path=doc.path, page=figure.page, rule=result.rule,
-                severity=result.severity, message=result.draft.message, value=result.draft.value,
-                threshold=result.draft.threshold, region=result.draft.region)))
-        figure_rows.append(figure_row(figure))
-    doc.figures, doc.findings = len(figure_rows), len(finding_rows)
-    return DocumentResult(doc, figure_rows, finding_rows, extracted.decorations)
+        for number, checked in enumerate(results):
+            result.findings.append(finding_row(Finding(
+                finding_id=f"{figure.figure_id}-{checked.rule}-{number}", figure_id=figure.figure_id,
+                document_id=doc.document_id, path=doc.path, page=figure.page, rule=checked.rule,
+                severity=checked.severity, message=checked.draft.message, value=checked.draft.value,
+                threshold=checked.draft.threshold, region=checked.draft.region)))
+        result.figures.append(figure_row(figure))
+    doc.figures, doc.findings = len(result.figures), len(result.findings)
+    return result
 
 
 def read_manifest(path: Path | None) -> tuple[list[str], dict[str, dict[str, str]]]:
@@ -140,8 +164,8 @@ def _manifest_for(doc: Document, rows: dict[str, dict[str, str]]) -> dict[str, s
     return matches[0] if len(matches) == 1 else {}
 
 
-def audit(inputs: list[str], out_dir: Path, config: Config, jobs: int = 1, manifest: Path | None = None,
-          use_cache: bool = True, strict: bool = False) -> AuditSummary:
+def audit(inputs: list[str], out_dir: Path, config: Config, options: RunOptions = RunOptions(),
+          manifest: Path | None = None) -> AuditSummary:
     started = time.monotonic()
     out_dir.mkdir(parents=True, exist_ok=True)
     assets = out_dir / "assets"
@@ -158,14 +182,19 @@ def audit(inputs: list[str], out_dir: Path, config: Config, jobs: int = 1, manif
             doc.manifest = _manifest_for(doc, manifest_rows)
             if doc.status != "ok":
                 save_document(conn, document_row(doc), [], [], cache_key, doc.manifest)
-            elif use_cache and cached_document(conn, doc.document_id, doc.sha256, cache_key):
+            elif options.use_cache and cached_document(conn, doc.document_id, doc.sha256, cache_key):
                 rename_document(conn, doc.document_id, doc.path, doc.manifest)
                 summary.reused += 1
             else:
                 pending.append(doc)
-        for result in _run_all(pending, config, assets, jobs, strict):
+        progress = Progress(len(pending), quiet=options.quiet)
+        for result in _results(pending, config, options, summary):
+            for name, data in result.images.items():
+                (assets / name).write_bytes(data)
             save_document(conn, document_row(result.doc), result.figures, result.findings, cache_key,
                           result.doc.manifest, result.decorations)
+            progress.advance(result.doc.status)
+        progress.close()
         doc_rows, figure_rows, finding_rows = load_rows(conn, [d.document_id for d in documents])
     finally:
         conn.close()
@@ -181,17 +210,29 @@ def audit(inputs: list[str], out_dir: Path, config: Config, jobs: int = 1, manif
     return summary
 
 
-def _run_all(docs: list[Document], config: Config, assets: Path, jobs: int, strict: bool):
-    if jobs <= 1 or len(docs) <= 1:
-        for doc in docs:
-            yield process_document(doc, config, assets, strict)
+def _failed(doc: Document, failure: Failure) -> DocumentResult:
+    doc.status, doc.error, doc.figures, doc.findings = failure.status, failure.reason, 0, 0
+    return DocumentResult(doc, [], [])
+
+
+def _results(docs: list[Document], config: Config, options: RunOptions,
+             summary: AuditSummary) -> Iterator[DocumentResult]:
+    if not docs:
         return
-    with ProcessPoolExecutor(max_workers=jobs) as pool:
-        futures = {pool.submit(process_document, doc, config, assets, strict): doc for doc in docs}
-        for future in as_completed(futures):
-            doc = futures[future]
-            try:
-                yield future.result()
-            except BrokenProcessPool:
-                doc.status, doc.error = "error", "worker process crashed while reading this document"
-                yield DocumentResult(doc, [], [])
+    if options.executor == "dask":
+        from corpusaudit.distributed import run_on_dask
+
+        yield from run_on_dask(docs, config, options.scheduler, options.strict)
+        return
+    if options.inline:
+        for doc in docs:
+            yield process_document(doc, config, options.strict)
+        return
+
+    def note_peak(rss: int) -> None:
+        summary.peak_worker_rss = max(summary.peak_worker_rss, rss)
+
+    tasks = [(doc, config, options.strict) for doc in docs]
+    for task, outcome in run_pool(process_task, tasks, options.jobs, options.time_limit_s,
+                                  options.memory_limit_mb * 2**20, on_peak=note_peak):
+        yield _failed(task[0], outcome) if isinstance(outcome, Failure) else outcome

@@ -1,0 +1,147 @@
+"""A crash-proof pool of worker processes: one document at a time per worker.
+
+Each task has a wall-clock limit and each worker a resident-memory ceiling. A worker that
+overruns either is killed and replaced; one that dies (a segfault in a native library,
+the kernel's out-of-memory killer) costs its current document only. Results come back
+in completion order as (task, result) pairs or (task, Failure).
+"""
+
+from __future__ import annotations
+
+import multiprocessing as mp
+import os
+import resource
+import time
+from dataclasses import dataclass
+from multiprocessing.connection import Connection, wait
+from typing import Any, Callable, Iterable, Iterator
+
+POLL_S = 0.2
+_PAGE_BYTES = os.sysconf("SC_PAGE_SIZE") if hasattr(os, "sysconf") else 4096
+
+
+@dataclass(frozen=True)
+class Failure:
+    status: str  # "error" or "timeout"
+    reason: str
+
+
+def resident_bytes(pid: int) -> int:
+    """Resident set size of a process (Linux /proc), 0 when unknown."""
+    try:
+        with open(f"/proc/{pid}/statm", "rb") as handle:
+            return int(handle.read().split()[1]) * _PAGE_BYTES
+    except (OSError, IndexError, ValueError):
+        return 0
+
+
+def _serve(function: Callable[[Any], Any], connection: Connection) -> None:
+    while True:
+        try:
+            task = connection.recv()
+        except EOFError:
+            return
+        if task is None:
+            return
+        try:
+            reply = ("ok", function(task))
+        except MemoryError:
+            reply = ("error", "out of memory while reading this document")
+        except Exception as exc:  # reported to the parent, which records it and goes on
+            reply = ("error", f"internal error: {type(exc).__name__}: {exc}")
+        peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024  # Linux reports KiB
+        connection.send((*reply, peak))
+
+
+class _Worker:
+    def __init__(self, context, function):
+        self.connection, child = context.Pipe()
+        self.process = context.Process(target=_serve, args=(function, child), daemon=True)
+        self.process.start()
+        child.close()
+        self.task: Any = None
+        self.deadline = 0.0
+        self.peak_rss = 0
+
+    def assign(self, task: Any, time_limit: float) -> None:
+        self.task, self.deadline = task, time.monotonic() + time_limit
+        self.connection.send(task)
+
+    def kill(self) -> None:
+        self.process.kill()
+        self.process.join(5)
+        self.connection.close()
+
+    def stop(self) -> None:
+        try:
+            self.connection.send(None)
+        except (BrokenPipeError, OSError):
+            pass
+        self.process.join(5)
+        if self.process.is_alive():
+            self.kill()
+
+
+def run_pool(function: Callable[[Any], Any], tasks: Iterable[Any], jobs: int, time_limit: float,
+             memory_limit: int, on_peak: Callable[[int], None] | None = None) -> Iterator[tuple[Any, Any]]:
+    """Run function(task) in `jobs` processes; yield (task, result | Failure) as each finishes."""
+    # fork is cheap (the parent has imported everything) and the parent holds no open
+    # documents or threads of its own while workers run; spawn where fork does not exist.
+    context = mp.get_context("fork" if "fork" in mp.get_all_start_methods() else "spawn")
+    queue = list(tasks)[::-1]
+    workers = [_Worker(context, function) for _ in range(min(jobs, len(queue)))]
+    try:
+        while queue or any(w.task is not None for w in workers):
+            for worker in workers:
+                if worker.task is None and queue:
+                    worker.assign(queue.pop(), time_limit)
+            busy = [w for w in workers if w.task is not None]
+            ready = wait([w.connection for w in busy] + [w.process.sentinel for w in busy], timeout=POLL_S)
+            now = time.monotonic()
+            for index, worker in enumerate(workers):
+                if worker.task is None:
+                    continue
+                task = worker.task
+                outcome: Any = None
+                replace = False
+                if worker.connection in ready:
+                    try:
+                        kind, payload, peak = worker.connection.recv()
+                        worker.peak_rss = max(worker.peak_rss, peak)
+                        outcome = payload if kind == "ok" else Failure("error", payload)
+                    except (EOFError, OSError):
+                        outcome, replace = _death(worker), True
+                elif worker.process.sentinel in ready or not worker.process.is_alive():
+                    outcome, replace = _death(worker), True
+                elif now > worker.deadline:
+                    outcome, replace = Failure("timeout", f"time limit of {time_limit:g} s exceeded"), True
+                    worker.kill()
+                else:
+                    rss = resident_bytes(worker.process.pid)
+                    worker.peak_rss = max(worker.peak_rss, rss)
+                    if memory_limit and rss > memory_limit:
+                        outcome = Failure("error", f"memory ceiling of {memory_limit // 2**20} MiB exceeded")
+                        replace = True
+                        worker.kill()
+                if outcome is None:
+                    continue
+                if replace:
+                    if on_peak:
+                        on_peak(worker.peak_rss)
+                    workers[index] = _Worker(context, function)
+                else:
+                    worker.task = None
+                yield task, outcome
+    finally:
+        for worker in workers:
+            if on_peak:
+                on_peak(worker.peak_rss)
+            worker.stop()
+
+
+def _death(worker: _Worker) -> Failure:
+    worker.process.join(1)
+    code = worker.process.exitcode
+    cause = f"killed by signal {-code}" if code is not None and code < 0 else f"exit code {code}"
+    worker.connection.close()
+    return Failure("error", f"worker process crashed ({cause}) while reading this document")
