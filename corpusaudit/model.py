@@ -96,7 +96,9 @@ class Figure:
     effective_ppi: float | None = None  # raster only: image pixels per inch at print size
     caption: str = ""
     figure_number: str = ""
-    pixels: np.ndarray | None = field(default=None, repr=False)  # HxWx3 uint8 RGB
+    pixels: np.ndarray | None = field(default=None, repr=False)  # HxWx3 uint8 RGB, as rendered
+    # A raster's own pixels before placement and resampling (8x8 JPEG blocks survive here).
+    native_pixels: np.ndarray | None = field(default=None, repr=False)
     vector: VectorEvidence | None = field(default=None, repr=False)
     image_info: dict[str, Any] = field(default_factory=dict)  # colour space, filter, xref ...
     chart_type: str = ""
