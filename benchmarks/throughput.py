@@ -1,0 +1,100 @@
+"""Throughput of the audit against the bare cost of PyMuPDF, at 10, 100 and 1,000 documents.
+
+For each corpus size (sample-corpus style documents from corpusaudit.democorpus) it prints
+wall time, documents and pages per second, time per document, the peak resident memory
+of the biggest worker, the speed-up of --jobs 2 over --jobs 1, and the ratio of the
+audit's wall time (one job) to a floor: PyMuPDF alone opening every document, reading
+every page's images, drawings and text, and rendering exactly the figure regions that
+the audit reports at the audit's dpi.
+
+    python benchmarks/throughput.py [--sizes 10,100,1000] [--speedup-size 100]
+"""
+
+from __future__ import annotations
+
+import argparse
+import csv
+import sys
+import time
+from collections import defaultdict
+from pathlib import Path
+
+import pymupdf
+
+REPO = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(REPO))
+
+from corpusaudit.config import load_config  # noqa: E402
+from corpusaudit.democorpus.build import build_corpus  # noqa: E402
+from corpusaudit.run import RunOptions, audit  # noqa: E402
+
+WORK = REPO / "benchmarks" / "_work" / "throughput"
+
+
+def corpus_of(size: int) -> Path:
+    folder = WORK / f"corpus-{size}"
+    if not (folder / ".complete").exists():
+        build_corpus(folder, size, seed=size)
+        (folder / ".complete").write_text("ok")
+    return folder
+
+
+def run_audit(folder: Path, jobs: int, tag: str) -> tuple[float, object, Path]:
+    out = WORK / f"out-{folder.name}-{tag}"
+    config = load_config(None)
+    started = time.perf_counter()
+    summary = audit([str(folder)], out, config, RunOptions(jobs=jobs, use_cache=False, quiet=True))
+    return time.perf_counter() - started, summary, out
+
+
+def floor_seconds(folder: Path, out: Path, dpi: int) -> tuple[float, int]:
+    """PyMuPDF alone: open, read images, drawings and text of every page, render the audit's figure regions."""
+    regions: dict[str, dict[int, list[tuple[float, ...]]]] = defaultdict(lambda: defaultdict(list))
+    with (out / "figures.csv").open(newline="") as handle:
+        for row in csv.DictReader(handle):
+            if row["source"] in ("raster", "vector", "scan"):
+                regions[row["path"]][int(row["page"])].append(
+                    tuple(float(row[k]) for k in ("x0", "y0", "x1", "y1")))
+    pages = 0
+    started = time.perf_counter()
+    for path in sorted(folder.rglob("*.pdf")):
+        try:
+            doc = pymupdf.open(path)
+        except Exception:
+            continue
+        wanted = regions.get(str(path), {})
+        for page in doc:
+            pages += 1
+            page.get_image_info(xrefs=True)
+            page.get_drawings()
+            page.get_text("dict")
+            for box in wanted.get(page.number + 1, ()):
+                page.get_pixmap(dpi=dpi, clip=pymupdf.Rect(box))
+        doc.close()
+    return time.perf_counter() - started, pages
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser()
+    parser.add_argument("--sizes", default="10,100,1000")
+    parser.add_argument("--speedup-size", type=int, default=100)
+    args = parser.parse_args()
+    sizes = [int(s) for s in args.sizes.split(",")]
+    dpi = load_config(None).extract.dpi
+    print(f"{'docs':>6} {'wall s':>8} {'docs/s':>7} {'pages/s':>8} {'ms/doc':>8} {'peak MiB':>9} "
+          f"{'floor s':>8} {'ratio':>6}")
+    for size in sizes:
+        folder = corpus_of(size)
+        wall, summary, out = run_audit(folder, 1, "j1")
+        floor, pages = floor_seconds(folder, out, dpi)
+        print(f"{size:>6} {wall:>8.2f} {size / wall:>7.2f} {pages / wall:>8.1f} {1000 * wall / size:>8.1f} "
+              f"{summary.peak_worker_rss / 2**20:>9.0f} {floor:>8.2f} {wall / floor:>6.2f}", flush=True)
+    folder = corpus_of(args.speedup_size)
+    one, _, _ = run_audit(folder, 1, "j1")
+    two, _, _ = run_audit(folder, 2, "j2")
+    print(f"speed-up of --jobs 2 over --jobs 1 at {args.speedup_size} documents: {one / two:.2f} "
+          f"({one:.1f} s -> {two:.1f} s)")
+
+
+if __name__ == "__main__":
+    main()
