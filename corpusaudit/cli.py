@@ -52,6 +52,8 @@ def _add_run_options(command: argparse.ArgumentParser, manifest: bool = True) ->
     command.add_argument("--dpi", type=int, metavar="N", help="render resolution for figures (default 150)")
     command.add_argument("--fail-on", choices=("error", "warning"), help="exit 1 when a finding reaches this severity")
     command.add_argument("--no-cache", action="store_true", help="reprocess documents already in the store")
+    command.add_argument("--annotate", action="store_true",
+                         help="write copies of PDFs with findings, annotated, to DIR/annotated/")
     command.add_argument("--quiet", action="store_true", help="print nothing but errors")
 
 
@@ -91,7 +93,7 @@ def _run_audit(args: argparse.Namespace, inputs: list[str], manifest: Path | Non
         return EXIT_USAGE
     options = RunOptions(jobs=max(1, args.jobs), time_limit_s=args.timeout, memory_limit_mb=args.memory_limit,
                          use_cache=not args.no_cache, executor=args.executor, scheduler=args.scheduler,
-                         quiet=args.quiet)
+                         quiet=args.quiet, annotate=args.annotate)
     try:
         summary = audit(inputs, args.out, config, options, manifest=manifest)
     except (ValueError, DaskUnavailable) as exc:
@@ -113,6 +115,7 @@ def _run_audit(args: argparse.Namespace, inputs: list[str], manifest: Path | Non
 
 def _demo(args: argparse.Namespace) -> int:
     from corpusaudit.democorpus.build import build_sample_corpus
+    from corpusaudit.discover import AUDITABLE_KINDS, KIND_EXTENSIONS
 
     bundled = Path(__file__).resolve().parents[1] / "sample_corpus"
     if not (bundled / "truth.json").is_file():
@@ -122,8 +125,11 @@ def _demo(args: argparse.Namespace) -> int:
         shown = Path(os.path.relpath(bundled))
     except ValueError:  # another drive on Windows
         shown = bundled
+    # The documents only: the corpus folder also holds its README, truth file and manifest.
+    documents = sorted(str(path) for path in shown.rglob("*")
+                       if path.is_file() and KIND_EXTENSIONS.get(path.suffix.lower()) in AUDITABLE_KINDS)
     manifest = shown / "manifest.csv"
-    return _run_audit(args, [str(shown)], manifest if manifest.is_file() else None)
+    return _run_audit(args, documents, manifest if manifest.is_file() else None)
 
 
 def main(argv: list[str] | None = None) -> int:

@@ -24,6 +24,7 @@ from corpusaudit.extract import ExtractError, extract_document
 from corpusaudit.measure import Measurements
 from corpusaudit.model import SEVERITY_RANK, Document, Figure, Finding
 from corpusaudit.progress import Progress
+from corpusaudit.report.annotate import annotate_pdf, annotated_path, render_page_thumbnails
 from corpusaudit.report.html import write_report
 from corpusaudit.report.tables import write_tables
 from corpusaudit.rows import document_row, figure_row, finding_row
@@ -45,6 +46,7 @@ class RunOptions:
     strict: bool = False  # re-raise rule errors instead of recording them
     executor: str = "local"  # local | dask
     scheduler: str = ""  # dask scheduler address
+    annotate: bool = False  # write annotated copies of PDFs with findings to annotated/
     quiet: bool = False
 
 
@@ -53,7 +55,7 @@ class DocumentResult:
     doc: Document
     figures: list[dict]
     findings: list[dict]
-    images: dict[str, bytes] = field(default_factory=dict)  # asset file name -> PNG bytes
+    files: dict[str, bytes] = field(default_factory=dict)  # path relative to the output folder -> bytes
     decorations: int = 0
 
 
@@ -129,8 +131,8 @@ def _process(doc: Document, config: Config, strict: bool) -> DocumentResult:
         _classify(figure, classifier, config)
         results, figure.unmeasured = check_figure(figure, config, Measurements(figure), strict=strict)
         if figure.pixels is not None:
-            result.images[f"{figure.figure_id}.png"] = _png(figure.pixels, THUMBNAIL_PX)
-            result.images[f"{figure.figure_id}.full.png"] = _png(figure.pixels, DETAIL_PX)
+            result.files[f"assets/{figure.figure_id}.png"] = _png(figure.pixels, THUMBNAIL_PX)
+            result.files[f"assets/{figure.figure_id}.full.png"] = _png(figure.pixels, DETAIL_PX)
             figure.thumbnail = f"assets/{figure.figure_id}.png"
         for number, checked in enumerate(results):
             result.findings.append(finding_row(Finding(
@@ -139,6 +141,9 @@ def _process(doc: Document, config: Config, strict: bool) -> DocumentResult:
                 severity=checked.severity, message=checked.draft.message, value=checked.draft.value,
                 threshold=checked.draft.threshold, region=checked.draft.region)))
         result.figures.append(figure_row(figure))
+    if doc.kind == "pdf" and result.figures:
+        result.files.update(render_page_thumbnails(doc.local_path, doc.document_id,
+                                                   pages={row["page"] for row in result.figures}))
     doc.figures, doc.findings = len(result.figures), len(result.findings)
     return result
 
@@ -157,19 +162,19 @@ def read_manifest(path: Path | None) -> tuple[list[str], dict[str, dict[str, str
 
 
 def _manifest_for(doc: Document, rows: dict[str, dict[str, str]]) -> dict[str, str]:
+    """The manifest row whose path is the document's path or its tail (paths relative to the manifest)."""
     key = os.path.normpath(doc.path)
     if key in rows:
         return rows[key]
-    matches = [value for name, value in rows.items() if os.path.basename(name) == os.path.basename(key)]
-    return matches[0] if len(matches) == 1 else {}
+    tails = [value for name, value in rows.items() if key.endswith(os.sep + name)]
+    return tails[0] if len(tails) == 1 else {}
 
 
 def audit(inputs: list[str], out_dir: Path, config: Config, options: RunOptions = RunOptions(),
           manifest: Path | None = None) -> AuditSummary:
     started = time.monotonic()
     out_dir.mkdir(parents=True, exist_ok=True)
-    assets = out_dir / "assets"
-    assets.mkdir(exist_ok=True)
+    (out_dir / "assets").mkdir(exist_ok=True)
     scratch = out_dir / ".scratch"
     manifest_columns, manifest_rows = read_manifest(manifest)
     summary = AuditSummary(out_dir=out_dir)
@@ -189,10 +194,15 @@ def audit(inputs: list[str], out_dir: Path, config: Config, options: RunOptions 
                 pending.append(doc)
         progress = Progress(len(pending), quiet=options.quiet)
         for result in _results(pending, config, options, summary):
-            for name, data in result.images.items():
-                (assets / name).write_bytes(data)
+            for name, data in result.files.items():
+                target = out_dir / name
+                target.parent.mkdir(parents=True, exist_ok=True)
+                target.write_bytes(data)
             save_document(conn, document_row(result.doc), result.figures, result.findings, cache_key,
                           result.doc.manifest, result.decorations)
+            if options.annotate and result.doc.kind == "pdf" and result.findings:
+                annotate_pdf(result.doc.local_path, annotated_path(out_dir, result.doc.document_id),
+                             result.figures, result.findings)
             progress.advance(result.doc.status)
         progress.close()
         doc_rows, figure_rows, finding_rows = load_rows(conn, [d.document_id for d in documents])

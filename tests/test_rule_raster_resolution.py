@@ -21,7 +21,9 @@ def _figure(ppi: float | None, source: str = "raster") -> Figure:
 def _run(figure: Figure, data: dict | None = None):
     config = build_config(data or {})
     results, unmeasured = check_figure(figure, config, Measurements(figure), strict=True)
-    return [(r.rule, r.severity, r.draft.value, r.draft.threshold) for r in results if r.rule == "raster-resolution"], unmeasured
+    mine = "raster-resolution"
+    return ([(r.rule, r.severity, r.draft.value, r.draft.threshold) for r in results if r.rule == mine],
+            [rule for rule in unmeasured if rule == mine])
 
 
 @pytest.mark.parametrize("ppi, expected", [
