@@ -24,7 +24,7 @@ REPO = Path(__file__).resolve().parents[1]
 
 def _documents(out: Path) -> dict[str, dict]:
     with (out / "documents.csv").open(newline="", encoding="utf-8") as handle:
-        return {row["path"].rsplit("/", 1)[-1]: row for row in csv.DictReader(handle)}
+        return {row["path"].rsplit("/", 1)[-1].rsplit("!", 1)[-1]: row for row in csv.DictReader(handle)}
 
 
 def test_pool_survives_crash_hang_memory_and_exceptions():

@@ -1,4 +1,4 @@
-"""Reproduction quality: resolution of embedded rasters."""
+"""Reproduction quality: resolution and lossy compression of rasters, and figure captions."""
 
 from __future__ import annotations
 
@@ -19,7 +19,9 @@ from corpusaudit.model import Draft, Option, Outcome
     ),
     rationale="""A raster placed at a low resolution prints blurry or pixelated: text and thin
         lines in a chart become hard to read. Resolution is measured as image pixels per inch
-        at the size the image is placed on the page (effective ppi).""",
+        at the size the image is placed on the page (effective ppi; the lower of the two axes
+        when the image is stretched). Below 150 ppi it warns, below 300 ppi it notes. Vector
+        figures and image files (no print size) are not judged.""",
     fix="""Export the chart as vector graphics (PDF, SVG, EPS) or as a raster of at least
         300 ppi at its printed size.""",
 )
@@ -37,3 +39,61 @@ def raster_resolution(ctx: CheckContext) -> Outcome:
             message=f"{ppi:.0f} ppi at print size; {info_below} ppi is the usual print standard",
             value=f"{ppi:.0f}", threshold=str(info_below), severity="info"),))
     return Outcome()
+
+
+@rule(
+    id="raster-compression",
+    applies_to=ANY_CHART,
+    sources=("raster", "image"),
+    severity="info",
+    requires=("compression",),
+    options=(
+        Option("ringing_limit", 1.0, "ripple beside edges (grey levels) from which ringing counts as visible",
+               "common practice, set on generated charts: PNG stays below ~1 grey level, JPEG at quality 85 or less above 1.3",
+               minimum=0.0),
+        Option("line_art_threshold", 0.6, "line-art score (0..1) from which the image is a chart or diagram "
+               "rather than a photograph", "common practice, tuned on charts versus photographs",
+               minimum=0.0, maximum=1.0),
+    ),
+    rationale="""JPEG and other lossy codings are made for photographs. On line art (charts,
+        diagrams, text) they leave ripples ('mosquito noise') beside every edge and 8x8 block
+        seams in flat areas, which blur thin lines and small text, while a lossless coding (PNG,
+        Flate) would be both sharper and often smaller. Photographs (continuous tone) are never
+        flagged. Decided on ringing beside edges, measured on the raster's own pixels where
+        available (else on the rendered pixels of a raster stored as JPEG).""",
+    fix="""Export the chart as vector graphics, or as PNG (lossless) rather than JPEG; do not
+        re-save a chart that has been through JPEG.""",
+)
+def raster_compression(ctx: CheckContext) -> Outcome:
+    evidence = ctx.measure("compression")
+    report = evidence.report
+    if report is None:  # a lossless coding is declared and no pixels of its own were read
+        return Outcome()
+    options = ctx.options
+    # Ringing decides: block-edge scores also rise on clean line art whose edges fall on the
+    # 8-pixel grid, so they only add to the message.
+    if report.line_art_score < options["line_art_threshold"] or report.ringing < options["ringing_limit"]:
+        return Outcome()
+    declared = f", stored as {evidence.declared}" if evidence.declared else ""
+    return Outcome(findings=(Draft(
+        message=f"lossy compression artefacts on line art (line-art score {report.line_art_score:.2f}{declared}): "
+                f"ringing of {report.ringing:.2f} grey levels beside edges, block-edge score {report.blockiness:.2f}",
+        value=f"{report.ringing:.2f}", threshold=f"{options['ringing_limit']:g}"),))
+
+
+@rule(
+    id="caption-missing",
+    applies_to=ANY_CHART,
+    sources=("raster", "vector", "scan"),
+    severity="info",
+    rationale="""A figure in a document should carry a caption ('Figure 3. ...') that says what it
+        shows and lets the text refer to it; without one, readers and screen-reader users lose its
+        context and it cannot be cited. A caption is looked for beside the figure on its page at
+        extraction; image files are not judged.""",
+    fix="""Add a numbered caption below (or above) the figure that states what is shown, the
+        units and the data source.""",
+)
+def caption_missing(ctx: CheckContext) -> Outcome:
+    if ctx.figure.caption.strip():
+        return Outcome()
+    return Outcome(findings=(Draft(message="no caption found beside the figure", value="", threshold="a caption"),))

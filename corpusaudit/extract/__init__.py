@@ -20,7 +20,7 @@ class ExtractConfig:
     min_figure_pt: float = 36.0  # smaller placements are decorations (icons, bullets)
     caption_pattern: str = DEFAULT_CAPTION_PATTERN
     caption_gap_pt: float = 36.0  # how far from a figure a caption may start
-    max_paths_per_page: int = 20_000  # beyond this a page's drawings are not clustered
+    max_paths_per_page: int = 100_000  # beyond this a page's drawings are not read (~2.5 s at the cap)
     max_image_pixels: int = 200_000_000  # larger declared images are refused (bombs)
     passwords: tuple[str, ...] = ()
 

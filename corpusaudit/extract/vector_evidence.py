@@ -78,19 +78,29 @@ def _is_rect(items) -> bool:
     return False
 
 
-def path_items(drawings: list[dict], origin: tuple[float, float], scale: float) -> list[PathItem]:
-    """PyMuPDF drawings (page points) as PathItems in figure pixels."""
-    ox, oy = origin
+def figure_matrix(page: pymupdf.Page, clip: pymupdf.Rect, scale: float) -> pymupdf.Matrix:
+    """Unrotated page points -> figure pixels of the region as displayed (page /Rotate applied)."""
+    shown = clip * page.rotation_matrix
+    return page.rotation_matrix * pymupdf.Matrix(1, 0, 0, 1, -shown.x0, -shown.y0) * pymupdf.Matrix(scale, scale)
+
+
+def _box(rect, matrix: pymupdf.Matrix) -> tuple[float, float, float, float]:
+    shown = pymupdf.Rect(rect) * matrix
+    return (shown.x0, shown.y0, shown.x1, shown.y1)
+
+
+def path_items(drawings: list[dict], matrix: pymupdf.Matrix, scale: float) -> list[PathItem]:
+    """PyMuPDF drawings (page points) as PathItems in figure pixels (matrix from figure_matrix)."""
     paths: list[PathItem] = []
     for drawing in drawings:
         kind = drawing.get("type")
         if kind not in ("f", "s", "fs"):
             continue  # clip paths and groups carry no ink
-        points = [((x - ox) * scale, (y - oy) * scale) for x, y in _path_points(drawing["items"])]
-        rect = drawing["rect"]
+        points = [(x * matrix.a + y * matrix.c + matrix.e, x * matrix.b + y * matrix.d + matrix.f)
+                  for x, y in _path_points(drawing["items"])]
         paths.append(PathItem(
             kind=kind,
-            bbox=((rect.x0 - ox) * scale, (rect.y0 - oy) * scale, (rect.x1 - ox) * scale, (rect.y1 - oy) * scale),
+            bbox=_box(drawing["rect"], matrix),
             fill=_colour(drawing.get("fill")) if "f" in kind else None,
             stroke=_colour(drawing.get("color")) if "s" in kind else None,
             width=float(drawing.get("width") or 0.0) * scale,
@@ -98,28 +108,51 @@ def path_items(drawings: list[dict], origin: tuple[float, float], scale: float) 
             closed=bool(drawing.get("closePath")) or (len(points) > 2 and points[0] == points[-1]),
             is_rect=_is_rect(drawing["items"]),
             dashes=str(drawing.get("dashes") or ""),
-            fill_opacity=float(drawing.get("fill_opacity") or 1.0),
-            stroke_opacity=float(drawing.get("stroke_opacity") or 1.0),
+            # 0.0 is a real opacity (invisible ink); only a missing value means opaque
+            fill_opacity=1.0 if drawing.get("fill_opacity") is None else float(drawing["fill_opacity"]),
+            stroke_opacity=1.0 if drawing.get("stroke_opacity") is None else float(drawing["stroke_opacity"]),
         ))
     return paths
 
 
-def text_spans(page: pymupdf.Page, clip: pymupdf.Rect, scale: float) -> list[TextSpan]:
-    """Text spans inside clip with their size (pt), angle (degrees) and colour, in figure pixels."""
+TEXT_FLAGS = pymupdf.TEXT_PRESERVE_WHITESPACE | pymupdf.TEXT_PRESERVE_LIGATURES | pymupdf.TEXT_MEDIABOX_CLIP
+
+
+def read_text(page: pymupdf.Page) -> dict:
+    """The page's text as PyMuPDF's "dict", read once (no image blocks: they carry image bytes)."""
+    return page.get_text("dict", flags=TEXT_FLAGS)
+
+
+def text_spans(page: pymupdf.Page, clip: pymupdf.Rect, scale: float, text: dict | None = None) -> list[TextSpan]:
+    """Text spans inside clip with their size (pt), angle (degrees) and colour, in figure pixels.
+
+    text: the page's read_text() when already read; spans are kept when their centre is in clip.
+    """
+    matrix = figure_matrix(page, clip, scale)
+    data = read_text(page) if text is None else text
     spans: list[TextSpan] = []
-    data = page.get_text("dict", clip=clip, flags=pymupdf.TEXT_PRESERVE_WHITESPACE)
     for block in data["blocks"]:
+        if block.get("type", 0) != 0:
+            continue
+        bx0, by0, bx1, by1 = block["bbox"]
+        if bx0 > clip.x1 or bx1 < clip.x0 or by0 > clip.y1 or by1 < clip.y0:
+            continue
         for line in block.get("lines", ()):
             cos, sin = line["dir"]
-            angle = round(math.degrees(math.atan2(-sin, cos)), 2) + 0.0  # y grows downwards; +0.0 drops -0.0
+            # direction as displayed: the rotation part of the page matrix, y grows downwards
+            shown_cos = cos * matrix.a + sin * matrix.c
+            shown_sin = cos * matrix.b + sin * matrix.d
+            angle = round(math.degrees(math.atan2(-shown_sin, shown_cos)), 2) + 0.0  # +0.0 drops -0.0
             for span in line["spans"]:
-                text = span["text"].strip()
-                if not text:
+                text_value = span["text"].strip()
+                if not text_value:
                     continue
                 x0, y0, x1, y1 = span["bbox"]
+                cx, cy = (x0 + x1) / 2, (y0 + y1) / 2
+                if not (clip.x0 <= cx <= clip.x1 and clip.y0 <= cy <= clip.y1):
+                    continue
                 spans.append(TextSpan(
-                    text=text,
-                    bbox=((x0 - clip.x0) * scale, (y0 - clip.y0) * scale, (x1 - clip.x0) * scale, (y1 - clip.y0) * scale),
+                    text=text_value, bbox=_box((x0, y0, x1, y1), matrix),
                     size_pt=round(float(span["size"]), 2), angle=angle,
                     colour=_rgb_from_int(int(span["color"])), font=span.get("font", ""),
                 ))
@@ -127,12 +160,17 @@ def text_spans(page: pymupdf.Page, clip: pymupdf.Rect, scale: float) -> list[Tex
 
 
 def vector_evidence(page: pymupdf.Page, clip: pymupdf.Rect, scale: float,
-                    drawings: list[dict] | None = None) -> VectorEvidence:
-    """Evidence for the region clip (page points); drawings may be passed when already read."""
+                    drawings: list[dict] | None = None, text: dict | None = None) -> VectorEvidence:
+    """Evidence for the region clip (unrotated page points, as PyMuPDF reports drawings and text).
+
+    Figure pixels are those of the region rendered as displayed (page rotation applied) at
+    scale pixels per point. drawings and text may be passed when already read.
+    """
     if drawings is None:
         drawings = page.get_drawings()
     # Compare coordinates: axis lines have zero-height rects, which Rect.intersects rejects.
     inside = [d for d in drawings if d["rect"].x0 <= clip.x1 and d["rect"].x1 >= clip.x0
               and d["rect"].y0 <= clip.y1 and d["rect"].y1 >= clip.y0]
-    return VectorEvidence(texts=text_spans(page, clip, scale),
-                          paths=path_items(inside, (clip.x0, clip.y0), scale), scale=scale)
+    matrix = figure_matrix(page, clip, scale)
+    return VectorEvidence(texts=text_spans(page, clip, scale, text),
+                          paths=path_items(inside, matrix, scale), scale=scale)

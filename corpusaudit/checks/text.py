@@ -1,0 +1,109 @@
+"""Text: contrast against its background (WCAG 2.x) and size at print size."""
+
+from __future__ import annotations
+
+from collections import Counter
+
+from corpusaudit.checks.registry import ANY_CHART, CheckContext, rule
+from corpusaudit.model import Draft, MeasurementUnavailable, Option, Outcome
+
+WCAG = "WCAG 2.1 success criterion 1.4.3 (Contrast, Minimum), level AA"
+
+
+def is_large_text(size_pt: float | None, bold: bool, large_pt: float, large_bold_pt: float) -> bool:
+    """WCAG's 'large scale' text: at least 18 pt, or 14 pt bold. Unknown size counts as large
+    (the lenient limit), so text without a print size is never flagged on a guess."""
+    if size_pt is None:
+        return True
+    return size_pt >= large_pt or (bold and size_pt >= large_bold_pt)
+
+
+@rule(
+    id="text-contrast",
+    applies_to=ANY_CHART,
+    severity="warning",
+    requires=("text_contrast",),
+    options=(
+        Option("min_ratio", 4.5, "smallest contrast ratio for normal text", WCAG, minimum=1.0, maximum=21.0),
+        Option("min_ratio_large", 3.0, "smallest contrast ratio for large text", WCAG, minimum=1.0, maximum=21.0),
+        Option("large_pt", 18.0, "size from which text is large", WCAG + " ('large scale': 18 pt)", minimum=0.0),
+        Option("large_bold_pt", 14.0, "size from which bold text is large", WCAG + " ('large scale': 14 pt bold)",
+               minimum=0.0),
+    ),
+    rationale="""Text that is too close in luminance to what lies behind it (light grey labels,
+        dark text on a saturated bar) is hard to read, in print, on projectors and for readers with
+        low vision. The WCAG 2.x contrast ratio of each piece of text against its local background
+        is compared with 4.5:1 (normal text) or 3:1 (large text: 18 pt, or 14 pt bold); the lowest
+        failing ratio is reported with the text's region. Vector text uses its stated colour;
+        raster text is read by OCR and its ink estimated from the cores of its strokes.""",
+    fix="""Darken the text (or lighten its background) until the ratio is at least 4.5:1; inside
+        dark or saturated marks use white text; avoid grey-on-grey tick labels.""",
+)
+def text_contrast(ctx: CheckContext) -> Outcome:
+    measured = ctx.measure("text_contrast")
+    options = ctx.options
+    failing = []
+    for item in measured:
+        large = is_large_text(item.size_pt, item.bold, options["large_pt"], options["large_bold_pt"])
+        limit = options["min_ratio_large"] if large else options["min_ratio"]
+        if item.ratio < limit:
+            failing.append((item.ratio, limit, large, item))
+    if not failing:
+        return Outcome()
+    ratio, limit, large, worst = min(failing, key=lambda f: f[0])
+    kind = "large" if large else "normal"
+    size = f"{worst.size_pt:g} pt " if worst.size_pt is not None else ""
+    more = f"; {len(failing)} text item(s) below their limit" if len(failing) > 1 else ""
+    return Outcome(findings=(Draft(
+        message=f"'{worst.text}' ({size}{kind} text) has contrast {ratio:.2f}:1 against its background, "
+                f"below {limit:g}:1{more}",
+        value=f"{ratio:.2f}", threshold=f"{limit:g}", region=worst.bbox),))
+
+
+def smallest_text(lines, per_size_minimum: int):
+    """The smallest text that is not a single stray glyph: spans of at least 2 letters or
+    digits, or single characters whose size is shared by `per_size_minimum` spans (tick labels)."""
+    sized = [line for line in lines if line.size_pt is not None]
+    singles = Counter(round(line.size_pt, 1) for line in sized if sum(ch.isalnum() for ch in line.text) == 1)
+    kept = [line for line in sized if sum(ch.isalnum() for ch in line.text) >= 2
+            or singles[round(line.size_pt, 1)] >= per_size_minimum]
+    return sorted(kept, key=lambda line: line.size_pt)
+
+
+@rule(
+    id="text-size",
+    applies_to=ANY_CHART,
+    severity="warning",
+    requires=("text_lines",),
+    options=(
+        Option("min_pt", 6.0, "smallest text size (points at print size) that passes",
+               "common practice for print: journals ask for 6-8 pt as the smallest lettering", minimum=0.0),
+        Option("raster_agreeing_words", 2,
+               "raster (OCR) text: this many words must be below the limit before it warns", minimum=1),
+    ),
+    rationale="""Text below about 6 pt at the size the figure is printed cannot be read comfortably,
+        and thin strokes may vanish in print. Vector text states its size; raster text size is
+        estimated from the height of its letters (OCR) and the figure's print size, so single
+        stray glyphs are ignored and several words must agree before a raster warns. Image files
+        have no print size and are not judged.""",
+    fix="""Enlarge the labels (or draw the chart at its final size so the fonts are not scaled
+        down), aiming at 7-9 pt for tick labels and more for titles.""",
+)
+def text_size(ctx: CheckContext) -> Outcome:
+    if ctx.figure.source == "image":
+        raise MeasurementUnavailable("an image file has no print size")
+    lines = ctx.measure("text_lines")
+    ordered = smallest_text(lines, per_size_minimum=3)
+    if not ordered:
+        return Outcome()
+    limit = ctx.options["min_pt"]
+    below = [line for line in ordered if line.size_pt < limit]
+    ocr = ordered[0].source == "ocr"
+    if not below or (ocr and len(below) < ctx.options["raster_agreeing_words"]):
+        return Outcome()
+    smallest = below[0]
+    estimated = "about " if ocr else ""
+    return Outcome(findings=(Draft(
+        message=f"'{smallest.text}' is {estimated}{smallest.size_pt:.1f} pt at print size, below {limit:g} pt; "
+                f"{len(below)} text item(s) below the limit",
+        value=f"{smallest.size_pt:.1f}", threshold=f"{limit:g}", region=smallest.bbox),))

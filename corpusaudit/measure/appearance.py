@@ -1,0 +1,469 @@
+"""Appearance of a figure: its categorical palette, continuous colour scales, text (size,
+colour, contrast against what lies behind it) and lossy-compression evidence.
+
+Vector figures state their colours and text exactly (figure.vector); rasters are read from
+pixels (colour clustering, colour-bar detection, OCR). Every figure has rendered pixels, so
+colour scales are found in pixels for both. The colour science and image-quality maths are
+in measure/colour.py and measure/quality.py; this module only decides what to feed them.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+
+import numpy as np
+
+from corpusaudit.measure import colour, measurement, quality
+from corpusaudit.measure.shapes import polyline_length, require_pixels
+from corpusaudit.measure.text import ocr_words
+from corpusaudit.model import RGB, BBox, Figure, MeasurementUnavailable, PathItem
+
+MAX_CATEGORICAL = 12  # more distinct chromatic colours than this: a continuous scale, not categories
+GREY_CHROMA = 8.0  # C* below this is neutral: axes, grid, text, frames (colour.extract_palette's limit)
+BACKGROUND_SHARE = 0.4  # a fill covering this share of the figure is a background panel
+MIN_SCALE_STEPS = 8  # fewer distinct colours do not describe a continuous scale
+
+# Ink-height of a word as a fraction of its font size (em), from DejaVu Sans (matplotlib's
+# default): ascender/cap 0.76, x-height 0.55, descender 0.24. Fonts with smaller
+# proportions (Arial, Times) come out slightly larger: the estimate errs towards passing.
+_ASCENDING = set("ABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789bdfhiklt")
+_DESCENDING = set("gjpqy")
+_TOP_TALL, _TOP_SHORT, _DESCENDER = 0.76, 0.55, 0.24
+_BOLD = re.compile(r"bold|black|heavy|semibold|demi", re.IGNORECASE)
+
+
+# ------------------------------------------------------------------ value types
+
+
+@dataclass(frozen=True)
+class CategoricalColour:
+    """One colour that marks a category: displayed sRGB (0..1), weight share, where it is drawn."""
+
+    rgb: RGB
+    share: float
+    region: BBox | None  # figure pixels
+
+    @property
+    def hex(self) -> str:
+        return "#" + "".join(f"{round(c * 255):02x}" for c in self.rgb)
+
+
+@dataclass(frozen=True)
+class Palette:
+    """colours: the categorical (chromatic) colours, heaviest first; empty when continuous.
+    continuous: more than MAX_CATEGORICAL distinct chromatic colours (a colour map).
+    distinct: distinct chromatic colours seen (0 when a colour scale explains the colours)."""
+
+    colours: tuple[CategoricalColour, ...]
+    continuous: bool
+    distinct: int
+
+
+@dataclass(frozen=True)
+class FoundScale:
+    """A continuous colour scale: a colour bar, or the fills of a heatmap or map."""
+
+    kind: str  # "colour bar" | "fills"
+    bbox: BBox  # figure pixels
+    colours: np.ndarray  # Nx3 sRGB 0..1, in order along the scale
+    profile: colour.ScaleProfile
+
+
+@dataclass(frozen=True)
+class TextLine:
+    """A piece of text: a vector span or an OCR word. size_pt is None without a print size."""
+
+    text: str
+    bbox: BBox  # figure pixels
+    size_pt: float | None
+    colour: RGB | None  # stated (vector); None for OCR
+    bold: bool
+    source: str  # "vector" | "ocr"
+    em_px: float  # font size in figure pixels (stated, or estimated from the ink height)
+
+
+@dataclass(frozen=True)
+class TextContrast:
+    """WCAG 2.x contrast of one piece of text against its local background."""
+
+    text: str
+    bbox: BBox
+    ratio: float
+    foreground: RGB
+    background: RGB
+    size_pt: float | None
+    bold: bool
+
+
+@dataclass(frozen=True)
+class Compression:
+    """report: pixel evidence (None when no pixels of the raster's own could be read).
+    declared: the filter or file format the source names ("DCTDecode", "JPEG", "FlateDecode"...).
+    declared_lossy: True/False when the declared coding says so, None when unknown.
+    native: the report was made on the raster's own pixels (JPEG's 8x8 grid intact)."""
+
+    report: quality.ArtefactReport | None
+    declared: str
+    declared_lossy: bool | None
+    native: bool
+
+
+# ------------------------------------------------------------------ helpers
+
+
+def _is_vector(figure: Figure) -> bool:
+    return figure.source == "vector" and figure.vector is not None
+
+
+def _union(boxes: list[BBox]) -> BBox | None:
+    if not boxes:
+        return None
+    array = np.asarray(boxes, dtype=float)
+    return (float(array[:, 0].min()), float(array[:, 1].min()), float(array[:, 2].max()), float(array[:, 3].max()))
+
+
+def _polygon_area(points: list[tuple[float, float]]) -> float:
+    if len(points) < 3:
+        return 0.0
+    x, y = np.asarray(points, dtype=float).T
+    return float(abs(np.dot(x, np.roll(y, -1)) - np.dot(y, np.roll(x, -1))) / 2.0)
+
+
+def _displayed(rgb: RGB, opacity: float, background: np.ndarray) -> np.ndarray:
+    """A translucent fill as seen over the figure background (sRGB blend, as PDF viewers do)."""
+    return opacity * np.asarray(rgb) + (1.0 - opacity) * background
+
+
+def _pixels_like(pixels: np.ndarray, rgb: np.ndarray, tolerance: int = 24) -> np.ndarray:
+    target = np.round(np.asarray(rgb) * 255.0).astype(np.int16)
+    return (np.abs(pixels.astype(np.int16) - target).max(axis=2) <= tolerance)
+
+
+EDGE_PX = 2  # rendered clips with fractional edges blend their outer pixel rows with the page
+
+
+def _inner(pixels: np.ndarray) -> np.ndarray:
+    """The pixels without their outermost rows and columns, whose blend with the page around
+    a fractional clip would otherwise pass for the background of the whole figure."""
+    if min(pixels.shape[:2]) <= 4 * EDGE_PX:
+        return pixels
+    return np.ascontiguousarray(pixels[EDGE_PX:-EDGE_PX, EDGE_PX:-EDGE_PX])
+
+
+def _shift(box, offset: int) -> BBox:
+    return tuple(float(v) + offset for v in box)
+
+
+def _colour_bins(rgb_uint8: np.ndarray) -> np.ndarray:
+    """32 levels per channel: colours within ~8/255 share a bin."""
+    q = (np.asarray(rgb_uint8) >> 3).astype(np.int32)
+    return (q[..., 0] << 10) | (q[..., 1] << 5) | q[..., 2]
+
+
+def _mask_box(mask: np.ndarray) -> BBox | None:
+    rows, cols = np.flatnonzero(mask.any(axis=1)), np.flatnonzero(mask.any(axis=0))
+    if not len(rows):
+        return None
+    return (float(cols[0]), float(rows[0]), float(cols[-1] + 1), float(rows[-1] + 1))
+
+
+# ------------------------------------------------------------------ colour scales
+
+
+def _trim_frame_ends(colours: np.ndarray, max_trim: int = 3) -> np.ndarray:
+    """Drop up to max_trim samples at either end that sit past a jump far larger than the
+    scale's typical step: the bar's frame, or its blend with the bar's last colour."""
+    if len(colours) < 4 * max_trim:
+        return colours
+    steps = np.linalg.norm(np.diff(colour.srgb_to_lab(colours), axis=0), axis=1)
+    limit = max(6.0 * float(np.median(steps)), 15.0)
+    start, end = 0, len(colours)
+    for k in range(max_trim):
+        if steps[k] > limit:
+            start = k + 1
+        if steps[-1 - k] > limit:
+            end = len(colours) - 1 - k
+    return colours[start:end]
+
+
+def _distinct_steps(colours: np.ndarray) -> int:
+    """Distinct 8-bit colours of a scale: a strip of a few repeated colours is no colour bar."""
+    return len(np.unique(np.round(np.asarray(colours) * 255.0).astype(np.int32), axis=0))
+
+
+def _fill_scale(pixels: np.ndarray, offset: int) -> FoundScale | None:
+    colours = colour.continuous_fill_scale(pixels)
+    if len(colours) < MIN_SCALE_STEPS:
+        return None
+    bins = np.unique(_colour_bins(np.round(colours * 255.0).astype(np.uint8)))
+    region = _mask_box(np.isin(_colour_bins(pixels), bins))
+    if region is None:
+        return None
+    return FoundScale("fills", _shift(region, offset), colours, colour.analyse_scale(colours))
+
+
+@measurement("colour_scales")
+def colour_scales(figure: Figure, measurements) -> list[FoundScale]:
+    """Colour bars found in the rendered pixels (vector and raster alike), largest first;
+    for heatmaps and maps without a colour bar, the ordered fill colours instead.
+    Raises MeasurementUnavailable for a heatmap or map whose scale cannot be read."""
+    pixels = require_pixels(figure)
+    inner = _inner(pixels)
+    offset = (pixels.shape[0] - inner.shape[0]) // 2
+    scales = []
+    for found in colour.find_colour_scales(inner):
+        if not np.isfinite(found.colours).all():  # a strip with an empty step (seen on photographs)
+            continue
+        colours = _trim_frame_ends(found.colours)
+        if _distinct_steps(colours) >= MIN_SCALE_STEPS:
+            scales.append(FoundScale("colour bar", _shift(found.bbox, offset), colours, colour.analyse_scale(colours)))
+    if not scales and figure.chart_type in ("heatmap", "map") and not figure.low_confidence:
+        fills = _fill_scale(inner, offset)
+        if fills is None:
+            raise MeasurementUnavailable("no colour bar and too few fill colours to read the colour scale")
+        scales.append(fills)
+    return scales
+
+
+# ------------------------------------------------------------------ palette
+
+
+def _vector_palette(figure: Figure) -> tuple[np.ndarray, np.ndarray, list[BBox]]:
+    """Displayed colours of filled and stroked paths, weighted by area and by length x width."""
+    height, width = figure.pixels.shape[:2] if figure.pixels is not None else (figure.height_px, figure.width_px)
+    figure_area = max(1.0, float(width) * float(height))
+    background = np.asarray(colour.estimate_background(_inner(figure.pixels))) if figure.pixels is not None \
+        else np.ones(3)
+    colours, weights, boxes = [], [], []
+
+    def add(rgb: RGB, opacity: float, weight: float, path: PathItem) -> None:
+        if weight > 0 and opacity > 0.05:
+            colours.append(_displayed(rgb, opacity, background))
+            weights.append(weight)
+            boxes.append(path.bbox)
+
+    for path in figure.vector.paths:
+        box_area = max(0.0, path.bbox[2] - path.bbox[0]) * max(0.0, path.bbox[3] - path.bbox[1])
+        if path.fill is not None and box_area < BACKGROUND_SHARE * figure_area:
+            area = _polygon_area(path.points) if len(path.points) >= 3 else box_area
+            add(path.fill, path.fill_opacity, area, path)
+        if path.stroke is not None:
+            add(path.stroke, path.stroke_opacity, polyline_length(path.points) * max(path.width, 1.0), path)
+    return np.asarray(colours).reshape(-1, 3), np.asarray(weights, dtype=float), boxes
+
+
+@measurement("palette")
+def palette(figure: Figure, measurements) -> Palette:
+    """The categorical colours of a figure (chromatic only: greys are axes, text and frames).
+
+    Vector: path fills (by area) and strokes (by length x width), translucent ones blended
+    over the background, whole-figure panels left out. Raster: the colour clusters of
+    colour.extract_palette. A figure with a colour scale (a colour bar; heatmaps and maps),
+    or with more than MAX_CATEGORICAL distinct colours, has a continuous palette and no
+    categories.
+    """
+    pixels = require_pixels(figure)
+    scales = measurements.get("colour_scales")
+    if scales or figure.chart_type in ("heatmap", "map"):
+        # Colours that encode a continuous quantity (a colour bar explains them) are no categories.
+        return Palette(colours=(), continuous=True, distinct=0)
+    if _is_vector(figure) and figure.vector.paths:
+        rgb, weights, boxes = _vector_palette(figure)
+        found = colour.palette_from_colours(rgb, weights, merge_de=2.0, max_colours=64, grey_chroma=GREY_CHROMA) \
+            if len(rgb) else []
+        chromatic = [c for c in found if not c.is_grey]
+        lab = colour.srgb_to_lab(np.clip(rgb, 0, 1)) if len(rgb) else np.zeros((0, 3))
+        regions = []
+        for entry in chromatic:
+            near = colour.delta_e_ciede2000(lab, np.asarray(entry.lab)) < 2.0
+            regions.append(_union([box for box, hit in zip(boxes, near) if hit]))
+    else:
+        mask = np.zeros(pixels.shape[:2], dtype=bool)
+        mask[EDGE_PX:-EDGE_PX, EDGE_PX:-EDGE_PX] = True
+        found = colour.extract_palette(pixels, mask=mask, max_colours=MAX_CATEGORICAL + 1, grey_chroma=GREY_CHROMA)
+        chromatic = [c for c in found if not c.is_grey]
+        regions = [_mask_box(_pixels_like(pixels, np.asarray(c.rgb)) & mask) for c in chromatic]
+    if len(chromatic) > MAX_CATEGORICAL:
+        return Palette(colours=(), continuous=True, distinct=len(chromatic))
+    entries = tuple(CategoricalColour(rgb=c.rgb, share=c.share, region=region) for c, region in zip(chromatic, regions))
+    return Palette(colours=entries, continuous=False, distinct=len(chromatic))
+
+
+# ------------------------------------------------------------------ text
+
+
+def pixels_per_point(figure: Figure) -> float | None:
+    """Figure pixels per printed point; None for an image file (it has no print size)."""
+    if figure.source == "image":
+        return None
+    if _is_vector(figure):
+        return figure.vector.scale
+    width_pt = figure.bbox[2] - figure.bbox[0]
+    width_px = figure.pixels.shape[1] if figure.pixels is not None else figure.width_px
+    if width_pt <= 0 or not width_px:
+        return None
+    return width_px / width_pt
+
+
+def ink_height_em(text: str) -> float:
+    """Expected height of a word's ink box in em, from which letters it holds (see _TOP_TALL)."""
+    letters = set(text)
+    top = _TOP_TALL if letters & _ASCENDING else _TOP_SHORT
+    return top + (_DESCENDER if letters & _DESCENDING else 0.0)
+
+
+def _alphanumeric(text: str) -> int:
+    return sum(ch.isalnum() for ch in text)
+
+
+def plausible_word(text: str) -> bool:
+    """OCR output worth judging: 3+ letters or digits, or a number of 2+ digits. Shorter
+    reads are mostly marks, markers or cell edges taken for letters ('ee', 'Ge')."""
+    core = text.strip(".,;:()[]%'\"")
+    digits = core.replace(".", "").replace(",", "").replace("-", "").replace("\u2212", "")
+    return _alphanumeric(core) >= 3 or (len(digits) >= 2 and digits.isdigit())
+
+
+OCR_MAX_PIXELS = 2_500_000
+
+
+def _ocr_upscale(per_point: float | None) -> float:
+    """Tesseract reads glyphs of ~20 px best: enlarge so that 4 pt print reaches ~22 px."""
+    if per_point is None:
+        return 2.0
+    return float(np.clip(5.5 / per_point, 1.5, 3.0))
+
+
+@measurement("text_lines")
+def text_lines(figure: Figure, measurements) -> list[TextLine]:
+    """The figure's text. Vector: every span with its stated size and colour. Raster: OCR
+    words over the whole figure (at least 2 letters or digits); size in points from the ink
+    height (ink_height_em) and the figure's pixels per point, None for image files.
+    Raises MeasurementUnavailable when a raster has no pixels or OCR is not installed."""
+    if _is_vector(figure):
+        scale = figure.vector.scale
+        return [TextLine(span.text, span.bbox, span.size_pt, span.colour, bool(_BOLD.search(span.font or "")), "vector",
+                         span.size_pt * scale)
+                for span in figure.vector.texts if _alphanumeric(span.text) > 0 and span.size_pt > 0]
+    pixels = require_pixels(figure)
+    if not quality.is_line_art(pixels):
+        return []  # a photograph or continuous-tone image: no chart text to read, and OCR costs seconds
+    per_point = pixels_per_point(figure)
+    height, width = pixels.shape[:2]
+    # Tesseract's time grows with the pixel count: cap the enlarged image at OCR_MAX_PIXELS.
+    upscale = min(_ocr_upscale(per_point), float(np.sqrt(OCR_MAX_PIXELS / (height * width))))
+    words = ocr_words(pixels, (0, 0, width, height), upscale=max(upscale, 1.0), min_confidence=60.0)
+    lines = []
+    for word in words:
+        if not plausible_word(word.text):
+            continue
+        em_px = (word.bbox[3] - word.bbox[1]) / ink_height_em(word.text)
+        # A word's width is ~0.45-0.75 em per character: a box far off that is a misread.
+        em_per_char = (word.bbox[2] - word.bbox[0]) / len(word.text) / em_px
+        if not 0.3 <= em_per_char <= 1.2:
+            continue
+        size = None if per_point is None else round(em_px / per_point, 2)
+        lines.append(TextLine(word.text, word.bbox, size, None, False, "ocr", em_px))
+    return lines
+
+
+def _box_pixels(pixels: np.ndarray, box: BBox, margin: int) -> np.ndarray:
+    h, w = pixels.shape[:2]
+    x0, y0 = max(0, int(np.floor(box[0])) - margin), max(0, int(np.floor(box[1])) - margin)
+    x1, y1 = min(w, int(np.ceil(box[2])) + margin), min(h, int(np.ceil(box[3])) + margin)
+    return pixels[y0:y1, x0:x1].reshape(-1, 3)
+
+
+def _modal_colour(samples: np.ndarray) -> np.ndarray:
+    """The most common exact colour inside the most common 5-bit bin, 0..1: the bin makes it
+    robust to JPEG noise, the exact mode keeps anti-aliased edge pixels from tinting it."""
+    bins = _colour_bins(samples)
+    members = samples[bins == np.bincount(bins).argmax()].astype(np.int32)
+    codes = (members[:, 0] << 16) | (members[:, 1] << 8) | members[:, 2]
+    values, counts = np.unique(codes, return_counts=True)
+    code = int(values[counts.argmax()])
+    return np.array([(code >> 16) & 255, (code >> 8) & 255, code & 255]) / 255.0
+
+
+def _vector_contrast(line: TextLine, pixels: np.ndarray) -> TextContrast | None:
+    """Stated text colour against the modal rendered colour around it that is not the ink."""
+    samples = _box_pixels(pixels, line.bbox, margin=2)
+    if len(samples) < 4:
+        return None
+    ink = np.asarray(line.colour)
+    away = np.abs(samples / 255.0 - ink).max(axis=1) > 0.12
+    # Text drawn in the background colour leaves nothing else in its box: ratio 1, rightly.
+    background = _modal_colour(samples[away] if away.sum() >= 0.2 * len(samples) else samples)
+    ratio = float(colour.contrast_ratio(ink, background))
+    return TextContrast(line.text, line.bbox, ratio, tuple(float(v) for v in ink),
+                        tuple(float(v) for v in background), line.size_pt, line.bold)
+
+
+MIN_RASTER_EM_PX = 9.0  # smaller glyphs have strokes under a pixel wide: no pixel shows the full ink
+
+
+def _raster_contrast(line: TextLine, pixels: np.ndarray) -> TextContrast | None:
+    """Inside an OCR word box: the background is the modal colour, the ink the 2% of
+    pixels farthest from it in luminance (the cores of strokes, past their blended edges).
+    Glyphs too small to have stroke cores are not judged."""
+    samples = _box_pixels(pixels, line.bbox, margin=1)
+    if len(samples) < 16 or line.em_px < MIN_RASTER_EM_PX:
+        return None
+    background = _modal_colour(samples)
+    luminance = colour.relative_luminance(samples)
+    distance = np.abs(luminance - colour.relative_luminance(background))
+    core = samples[distance >= np.quantile(distance, 0.98)]
+    ink = np.median(core, axis=0) / 255.0
+    ratio = float(colour.contrast_ratio(ink, background))
+    return TextContrast(line.text, line.bbox, ratio, tuple(float(v) for v in ink),
+                        tuple(float(v) for v in background), line.size_pt, line.bold)
+
+
+@measurement("text_contrast")
+def text_contrast(figure: Figure, measurements) -> list[TextContrast]:
+    """WCAG contrast of every piece of text (see text_lines) against its local background."""
+    pixels = require_pixels(figure)
+    measure = _vector_contrast if _is_vector(figure) else _raster_contrast
+    found = []
+    for line in measurements.get("text_lines"):
+        if line.source == "vector" and line.colour is None:
+            continue
+        result = measure(line, pixels)
+        if result is not None:
+            found.append(result)
+    return found
+
+
+# ------------------------------------------------------------------ compression
+
+_LOSSY_CODINGS = ("DCT", "JPX", "JPEG", "JPG", "MPO", "WEBP-LOSSY")
+_LOSSLESS_CODINGS = ("FLATE", "LZW", "RUNLENGTH", "CCITT", "PNG", "TIFF", "GIF", "BMP")
+
+
+def _declared_coding(info: dict) -> tuple[str, bool | None]:
+    declared = str(info.get("filter") or info.get("format") or "")
+    upper = declared.upper()
+    if any(code in upper for code in _LOSSY_CODINGS):
+        return declared, True
+    if any(code in upper for code in _LOSSLESS_CODINGS):
+        return declared, False
+    return declared, None
+
+
+@measurement("compression")
+def compression(figure: Figure, measurements) -> Compression:
+    """Lossy-coding evidence of a raster: quality.compression_artefacts on its own pixels
+    (figure.native_pixels; an image file's pixels are its own), else on the rendered pixels
+    when the source declares a lossy coding (ringing survives resampling, block edges do not).
+    Raises MeasurementUnavailable when neither pixels nor a declared coding tell."""
+    declared, declared_lossy = _declared_coding(figure.image_info)
+    native = figure.native_pixels if figure.native_pixels is not None else (
+        figure.pixels if figure.source == "image" else None)
+    if native is not None:
+        return Compression(quality.compression_artefacts(native), declared, declared_lossy, native=True)
+    if declared_lossy and figure.pixels is not None:
+        return Compression(quality.compression_artefacts(figure.pixels), declared, declared_lossy, native=False)
+    if declared_lossy is False:
+        return Compression(None, declared, declared_lossy, native=False)
+    raise MeasurementUnavailable("neither the raster's own pixels nor its coding are known")
