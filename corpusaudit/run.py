@@ -4,6 +4,7 @@ store each document's result as it finishes, and write the reports from the stor
 from __future__ import annotations
 
 import csv
+import dataclasses
 import io
 import logging
 import os
@@ -13,6 +14,7 @@ from pathlib import Path
 from typing import Iterator
 
 import numpy as np
+import pymupdf
 from PIL import Image
 
 from corpusaudit import __version__
@@ -47,6 +49,7 @@ class RunOptions:
     executor: str = "local"  # local | dask
     scheduler: str = ""  # dask scheduler address
     annotate: bool = False  # write annotated copies of PDFs with findings to annotated/
+    chunk_pages: int = 40  # a PDF of more than twice this many pages is split into ranges across workers
     quiet: bool = False
 
 
@@ -99,10 +102,11 @@ def _classifier() -> Classifier | None:
     return _WORKER_CLASSIFIER["model"]
 
 
-def process_document(doc: Document, config: Config, strict: bool = False) -> DocumentResult:
-    """Everything for one document; a failure costs this document only, never the batch."""
+def process_document(doc: Document, config: Config, strict: bool = False,
+                     pages: tuple[int, int] | None = None) -> DocumentResult:
+    """Everything for one document (or a page range of it); a failure costs this document only."""
     try:
-        return _process(doc, config, strict)
+        return _process(doc, config, strict, pages)
     except ExtractError as exc:
         doc.status, doc.error = "error", str(exc)
     except Exception as exc:
@@ -114,14 +118,14 @@ def process_document(doc: Document, config: Config, strict: bool = False) -> Doc
     return DocumentResult(doc, [], [])
 
 
-def process_task(task: tuple[Document, Config, bool]) -> DocumentResult:
+def process_task(task: tuple[Document, Config, bool, tuple[int, int] | None]) -> DocumentResult:
     """process_document for a worker process or a cluster: one picklable argument."""
     return process_document(*task)
 
 
-def _process(doc: Document, config: Config, strict: bool) -> DocumentResult:
+def _process(doc: Document, config: Config, strict: bool, pages: tuple[int, int] | None) -> DocumentResult:
     """Pure: figure images come back as PNG bytes for the caller to write."""
-    extracted = extract_document(doc, config.extract)
+    extracted = extract_document(doc, config.extract, pages)
     doc.pages = extracted.pages
     if extracted.errors:
         doc.error = "; ".join(extracted.errors)
@@ -143,7 +147,8 @@ def _process(doc: Document, config: Config, strict: bool) -> DocumentResult:
         result.figures.append(figure_row(figure))
     if doc.kind == "pdf" and result.figures:
         result.files.update(render_page_thumbnails(doc.local_path, doc.document_id,
-                                                   pages={row["page"] for row in result.figures}))
+                                                   pages={row["page"] for row in result.figures},
+                                                   passwords=config.extract.passwords))
     doc.figures, doc.findings = len(result.figures), len(result.findings)
     return result
 
@@ -202,7 +207,7 @@ def audit(inputs: list[str], out_dir: Path, config: Config, options: RunOptions 
                           result.doc.manifest, result.decorations)
             if options.annotate and result.doc.kind == "pdf" and result.findings:
                 annotate_pdf(result.doc.local_path, annotated_path(out_dir, result.doc.document_id),
-                             result.figures, result.findings)
+                             result.figures, result.findings, config.extract.passwords)
             progress.advance(result.doc.status)
         progress.close()
         doc_rows, figure_rows, finding_rows = load_rows(conn, [d.document_id for d in documents])
@@ -225,6 +230,43 @@ def _failed(doc: Document, failure: Failure) -> DocumentResult:
     return DocumentResult(doc, [], [])
 
 
+def page_ranges(doc: Document, chunk_pages: int) -> list[tuple[int, int] | None]:
+    """Page ranges for a long PDF, so one 900-page thesis does not hold the batch's tail."""
+    if doc.kind != "pdf" or chunk_pages <= 0:
+        return [None]
+    try:
+        with pymupdf.open(doc.local_path) as pdf:
+            count = pdf.page_count if not pdf.needs_pass else 0
+    except Exception:  # unreadable: the worker reports why
+        return [None]
+    if count <= 2 * chunk_pages:
+        return [None]
+    return [(first, min(first + chunk_pages - 1, count)) for first in range(1, count + 1, chunk_pages)]
+
+
+def merge_parts(parts: list[DocumentResult]) -> DocumentResult:
+    """One document's result from the results of its page ranges."""
+    if len(parts) == 1:
+        return parts[0]
+    doc = parts[0].doc
+    errors: list[str] = []
+    for part in parts:
+        for error in filter(None, part.doc.error.split("; ")):
+            if error not in errors:
+                errors.append(error)
+    failed = [part.doc.status for part in parts if part.doc.status != "ok"]
+    doc.status = "timeout" if "timeout" in failed else "error" if failed else "ok"
+    doc.pages = max(part.doc.pages for part in parts)
+    doc.error = "; ".join(errors)
+    merged = DocumentResult(doc, [row for part in parts for row in part.figures],
+                            [row for part in parts for row in part.findings],
+                            decorations=sum(part.decorations for part in parts))
+    for part in parts:
+        merged.files.update(part.files)
+    doc.figures, doc.findings = len(merged.figures), len(merged.findings)
+    return merged
+
+
 def _results(docs: list[Document], config: Config, options: RunOptions,
              summary: AuditSummary) -> Iterator[DocumentResult]:
     if not docs:
@@ -242,7 +284,18 @@ def _results(docs: list[Document], config: Config, options: RunOptions,
     def note_peak(rss: int) -> None:
         summary.peak_worker_rss = max(summary.peak_worker_rss, rss)
 
-    tasks = [(doc, config, options.strict) for doc in docs]
+    tasks, expected = [], {}
+    for doc in docs:
+        ranges = page_ranges(doc, options.chunk_pages)
+        expected[doc.document_id] = len(ranges)
+        tasks.extend((dataclasses.replace(doc), config, options.strict, pages) for pages in ranges)
+    parts: dict[str, list[DocumentResult]] = {}
     for task, outcome in run_pool(process_task, tasks, options.jobs, options.time_limit_s,
                                   options.memory_limit_mb * 2**20, on_peak=note_peak):
-        yield _failed(task[0], outcome) if isinstance(outcome, Failure) else outcome
+        result = _failed(task[0], outcome) if isinstance(outcome, Failure) else outcome
+        if isinstance(outcome, Failure) and task[3]:
+            result.doc.error = f"pages {task[3][0]}-{task[3][1]}: {outcome.reason}"
+        done = parts.setdefault(result.doc.document_id, [])
+        done.append(result)
+        if len(done) == expected[result.doc.document_id]:
+            yield merge_parts(parts.pop(result.doc.document_id))

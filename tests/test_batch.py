@@ -14,6 +14,9 @@ from pathlib import Path
 import pytest
 
 from corpusaudit.cli import main
+from corpusaudit.config import load_config
+from corpusaudit.discover import discover
+from corpusaudit.run import RunOptions, audit, page_ranges
 from corpusaudit.workers import Failure, run_pool
 from tests import hostile
 from tests.conftest import pdf_with_rasters, png_bytes
@@ -98,6 +101,27 @@ def test_page_with_a_million_paths_does_not_stop_the_batch(tmp_path):
     dense = rows["dense.pdf"]
     assert dense["status"] == "timeout" or (dense["status"] == "ok" and "page 1" in dense["error"]) \
         or dense["status"] == "ok"
+
+
+def test_long_pdf_split_into_page_ranges_equals_one_pass(tmp_path):
+    import pymupdf
+
+    source = pdf_with_rasters(tmp_path / "three.pdf", [100, 200, 400])
+    long = pymupdf.open()
+    for number in range(1, 101):
+        if number in (1, 50, 100):
+            long.insert_pdf(pymupdf.open(source), from_page=(number // 50), to_page=(number // 50))
+        else:
+            long.new_page()
+    corpus = tmp_path / "corpus"
+    corpus.mkdir()
+    long.save(corpus / "thesis.pdf")
+    config = load_config(None)
+    assert page_ranges(discover([str(corpus / "thesis.pdf")], tmp_path / "s")[0], 40) == [(1, 40), (41, 80), (81, 100)]
+    split = audit([str(corpus)], tmp_path / "split", config, RunOptions(jobs=2, chunk_pages=40, quiet=True))
+    whole = audit([str(corpus)], tmp_path / "whole", config, RunOptions(inline=True, quiet=True))
+    assert split.figures == whole.figures == 3
+    assert _tables(tmp_path / "split") == _tables(tmp_path / "whole")
 
 
 def _tables(out: Path) -> tuple[str, str, str]:

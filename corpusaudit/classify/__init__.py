@@ -3,16 +3,26 @@
 API used by the pipeline:
   load_classifier(path=None) -> Classifier | None   (None: no model file shipped yet)
   Classifier.predict(rgb: np.ndarray) -> Prediction
+A prediction whose confidence is below LOW_CONFIDENCE keeps its best label; callers mark the
+figure low-confidence (Figure.low_confidence).
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import lru_cache
 from pathlib import Path
 
 import numpy as np
 
+from . import features
+from .model import ModelIntegrityError, load
+
 MODELS_DIR = Path(__file__).resolve().parents[2] / "models"
+MODEL_FILE = MODELS_DIR / "chart_classifier.skops"
+LOW_CONFIDENCE = 0.5
+
+__all__ = ["Classifier", "LOW_CONFIDENCE", "MODEL_FILE", "ModelIntegrityError", "Prediction", "load_classifier"]
 
 
 @dataclass(frozen=True)
@@ -21,12 +31,56 @@ class Prediction:
     confidence: float
     top3: tuple[tuple[str, float], ...]
 
+    @property
+    def low_confidence(self) -> bool:
+        return self.confidence < LOW_CONFIDENCE
+
+
+@lru_cache(maxsize=1)
+def _thread_controller():
+    from threadpoolctl import ThreadpoolController
+
+    return ThreadpoolController()
+
+
+def _single_thread():
+    return _thread_controller().limit(limits=1, user_api="openmp")
+
 
 class Classifier:
-    def predict(self, rgb: np.ndarray) -> Prediction:  # pragma: no cover - interface
-        raise NotImplementedError
+    """A calibrated scikit-learn model over features.extract()."""
+
+    def __init__(self, estimator, metadata: dict):
+        self.estimator = estimator
+        self.metadata = metadata
+        self.classes = tuple(str(c) for c in estimator.classes_)
+
+    def probabilities(self, feature_rows: np.ndarray) -> np.ndarray:
+        # One figure is too little work to share out: starting OpenMP threads costs more than the trees,
+        # and the pipeline already runs one worker per core.
+        with _single_thread():
+            return self.estimator.predict_proba(np.atleast_2d(feature_rows))
+
+    def predict_features(self, feature_row: np.ndarray) -> Prediction:
+        proba = self.probabilities(feature_row)[0]
+        order = np.argsort(proba)[::-1][:3]
+        top3 = tuple((self.classes[i], float(proba[i])) for i in order)
+        return Prediction(label=top3[0][0], confidence=top3[0][1], top3=top3)
+
+    def predict(self, rgb: np.ndarray) -> Prediction:
+        """Chart type of an HxWx3 uint8 RGB image (greyscale HxW accepted)."""
+        return self.predict_features(features.extract(rgb))
 
 
 def load_classifier(path: str | Path | None = None) -> Classifier | None:
-    """The shipped model, or None while models/ holds no model file."""
-    return None
+    """The shipped model (None while models/ holds none), or the model at `path`.
+
+    Either is checked against the sha256 in its metadata JSON and loaded with an explicit list of
+    trusted types; a changed, foreign or mismatched file raises ModelIntegrityError.
+    """
+    if path is None:
+        if not MODEL_FILE.exists():
+            return None
+        path = MODEL_FILE
+    loaded = load(Path(path))
+    return Classifier(loaded.estimator, loaded.metadata)

@@ -37,11 +37,13 @@ class ExtractError(Exception):
     """The document cannot be read at all; the message is its one-line reason."""
 
 
-def extract_document(doc: Document, config: ExtractConfig) -> ExtractResult:
+def extract_document(doc: Document, config: ExtractConfig,
+                     pages: tuple[int, int] | None = None) -> ExtractResult:
+    """Figures of a document; pages (first, last; 1-based, inclusive) limits a PDF to a range."""
     if doc.kind == "pdf":
         from corpusaudit.extract.pdf import extract_pdf
 
-        return extract_pdf(doc, config)
+        return extract_pdf(doc, config, pages)
     from corpusaudit.extract.images import extract_image_file
 
     return extract_image_file(doc, config)

@@ -305,9 +305,11 @@ def _within(inner, outer) -> bool:
         and inner[3] <= outer[3] + 0.5
 
 
-def extract_pdf(doc: Document, config: ExtractConfig) -> ExtractResult:
+def extract_pdf(doc: Document, config: ExtractConfig, pages: tuple[int, int] | None = None) -> ExtractResult:
+    """Figures of every page, or of pages first..last; repeated images are judged over the whole document."""
     pdf = open_pdf(doc, config)
     result = ExtractResult(pages=pdf.page_count)
+    first, last = pages or (1, pdf.page_count)
     pattern = re.compile(config.caption_pattern, re.IGNORECASE)
     try:
         # First pass: every page's image placements, to know the images repeated across pages.
@@ -322,7 +324,7 @@ def extract_pdf(doc: Document, config: ExtractConfig) -> ExtractResult:
         repeated = repeated_keys(keys)
         failed = sum(info is None for info in infos)
         for number, info in enumerate(infos, start=1):
-            if info is None:
+            if info is None or not first <= number <= last:
                 continue
             try:
                 reading = _Page(pdf, pdf[number - 1], number, doc, config, pattern)

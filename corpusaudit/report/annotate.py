@@ -53,8 +53,17 @@ def _note_text(figure: dict, findings: list[dict], fixes: dict[str, str]) -> str
     return "\n".join(lines)
 
 
+def open_unlocked(source: str | os.PathLike, passwords: Iterable[str] = ()) -> pymupdf.Document:
+    """Open a PDF, trying the given passwords on an encrypted one (ValueError when none fits)."""
+    pdf = pymupdf.open(source)
+    if pdf.needs_pass and not any(pdf.authenticate(password) for password in passwords):
+        pdf.close()
+        raise ValueError(f"{source} is encrypted and no password opened it")
+    return pdf
+
+
 def annotate_pdf(source_pdf_path: str | os.PathLike, out_path: str | os.PathLike, figures: list[dict],
-                 findings: list[dict]) -> int:
+                 findings: list[dict], passwords: Iterable[str] = ()) -> int:
     """Write a copy of source_pdf_path to out_path with annotations on figures that have findings.
 
     figures and findings are rows of one document (FIGURE_COLUMNS / FINDING_COLUMNS); boxes are
@@ -69,7 +78,7 @@ def annotate_pdf(source_pdf_path: str | os.PathLike, out_path: str | os.PathLike
         by_figure[finding["figure_id"]].append(finding)
     fixes = {rule.id: rule.fix for rule in all_rules()}
     annotated = 0
-    with pymupdf.open(source) as pdf:
+    with open_unlocked(source, passwords) as pdf:
         for figure in figures:
             flagged = by_figure.get(figure["figure_id"])
             page_number = int(figure["page"] or 1)
@@ -102,8 +111,8 @@ def annotate_pdf(source_pdf_path: str | os.PathLike, out_path: str | os.PathLike
 
 
 def render_page_thumbnails(source_pdf_path: str | os.PathLike, document_id: str,
-                           pages: Iterable[int] | None = None,
-                           max_side: int = PAGE_THUMBNAIL_PX) -> dict[str, bytes]:
+                           pages: Iterable[int] | None = None, max_side: int = PAGE_THUMBNAIL_PX,
+                           passwords: Iterable[str] = ()) -> dict[str, bytes]:
     """Small PNGs of pages (1-based; default all) as displayed, for the document view.
 
     Returns {path relative to the output folder: bytes}: assets/pages/<document_id>-p<N>.png
@@ -111,7 +120,7 @@ def render_page_thumbnails(source_pdf_path: str | os.PathLike, document_id: str,
     points, the frame of the figure boxes). Pure: the caller writes them.
     """
     files: dict[str, bytes] = {}
-    with pymupdf.open(source_pdf_path) as pdf:
+    with open_unlocked(source_pdf_path, passwords) as pdf:
         sizes = {str(i + 1): [round(p.rect.width, 2), round(p.rect.height, 2)] for i, p in enumerate(pdf)}
         wanted = sorted({p for p in (pages if pages is not None else range(1, pdf.page_count + 1))
                          if 1 <= p <= pdf.page_count})

@@ -6,6 +6,8 @@ import matplotlib
 
 matplotlib.use("Agg")
 
+import warnings
+
 import matplotlib.style
 import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg
@@ -57,6 +59,9 @@ def _decorate(ax, rng, title=True, legend=False):
     if rng.random() < 0.25:
         for side in ("top", "right"):
             ax.spines[side].set_visible(False)
+    if rng.random() < 0.2:  # faint or missing axis lines, as web renderers draw them
+        for spine in ax.spines.values():
+            spine.set_color(str(rng.choice(["0.8", "0.9", "none"])))
     if legend and rng.random() < 0.75:
         loc = str(rng.choice(["best", "upper right", "upper left", "lower right", "center left"]))
         if rng.random() < 0.25:
@@ -176,7 +181,7 @@ def area(ax, rng):
 
 
 def scatter(ax, rng):
-    n = int(rng.choice([15, 40, 100, 300, 1000, 3000]))
+    n = int(rng.choice([15, 30, 40, 100, 300, 1000, 3000]))
     groups = int(rng.choice([1, 1, 2, 3, 4]))
     bubble = rng.random() < 0.25
     by_value = rng.random() < 0.2
@@ -187,7 +192,9 @@ def scatter(ax, rng):
         sizes = rng.uniform(20, 900, m) if bubble else float(rng.choice([4, 10, 20, 40]))
         kw = {"c": x + y, "cmap": c.continuous_map(rng)} if by_value else {"color": c.palette(rng, 1)[0]}
         marker = str(rng.choice(["o", "o", "o", "s", "^", "x", "+", "D"]))
-        if marker not in "x+":
+        if marker not in "x+" and rng.random() < 0.4 and not by_value:  # hollow markers
+            kw = {"facecolors": "none", "edgecolors": kw["color"]}
+        elif marker not in "x+":
             kw["edgecolors"] = str(rng.choice(["none", "face", "k", "white"]))
         pts = ax.scatter(x, y, s=sizes, alpha=float(rng.uniform(0.35, 1.0)), marker=marker,
                          label=c.label(rng), **kw)
@@ -320,6 +327,8 @@ def choropleth(ax, rng):
                            linewidth=float(rng.uniform(0.3, 1.5)))
     coll.set_array(values)
     ax.add_collection(coll)
+    if rng.random() < 0.3:  # regions cut by the frame instead of a coastline
+        outline = np.array([[0, 0], [1, 0], [1, 1], [0, 1]], float)
     clip = Polygon(outline, closed=True, transform=ax.transData, facecolor="none")
     coll.set_clip_path(clip)
     if rng.random() < 0.5:
@@ -348,7 +357,8 @@ def render(label: str, rng: np.random.Generator) -> np.ndarray:
     style = str(rng.choice(STYLES))
     rc = {"font.family": str(rng.choice(c.MPL_FONT_FAMILIES)), "font.size": float(rng.uniform(6, 14)),
           "axes.unicode_minus": False}
-    with matplotlib.style.context(style), matplotlib.rc_context(rc):
+    with matplotlib.style.context(style), matplotlib.rc_context(rc), warnings.catch_warnings():
+        warnings.simplefilter("ignore", UserWarning)  # cramped random layouts make tight_layout complain
         fig = Figure(figsize=(width / dpi, height / dpi), dpi=dpi)
         FigureCanvasAgg(fig)
         if rng.random() < 0.15:
