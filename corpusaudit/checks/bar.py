@@ -1,0 +1,146 @@
+"""Bar charts (and histograms): zero baseline, rotated labels, order, stack depth, 3D effects."""
+
+from __future__ import annotations
+
+from corpusaudit.checks._order import labels_at, monotone
+from corpusaudit.checks.registry import CheckContext, rule
+from corpusaudit.measure.axes import natural_order
+from corpusaudit.model import Draft, MeasurementUnavailable, Option, Outcome
+
+
+def _value_axis(ctx: CheckContext):
+    """The value axis of a bar chart: across the bars' lengths; from the axes' kinds if no bars."""
+    axes = ctx.measure("axes")
+    try:
+        orientation = ctx.measure("bars").orientation
+    except MeasurementUnavailable:
+        kinds = (axes.x.kind, axes.y.kind)
+        if kinds.count("numeric") != 1:
+            raise
+        orientation = "vertical" if axes.y.kind == "numeric" else "horizontal"
+    return (axes.y if orientation == "vertical" else axes.x), axes
+
+
+@rule(
+    id="bar-baseline",
+    applies_to=("bar", "histogram"),
+    severity="warning",
+    requires=("axes", "bars"),
+    options=(Option("tolerance", 0.02, "share of the axis range by which the axis may miss zero", minimum=0.0),),
+    rationale="""A bar encodes its value by its length from zero; when the value axis starts
+        elsewhere, bar lengths exaggerate differences.""",
+    fix="""Start the value axis at zero, or show the values as points or a line if only the
+        differences matter.""",
+)
+def bar_baseline(ctx: CheckContext) -> Outcome:
+    axis, axes = _value_axis(ctx)
+    if axis.kind != "numeric" or axis.fit is None:
+        return Outcome(unmeasured=True, reason="value axis has no linear numeric labels")
+    low, high = axis.value_range
+    slack = ctx.options["tolerance"] * (high - low)
+    plot = axes.plot
+    if low > slack:
+        region = (plot[0], plot[3] - 0.1 * (plot[3] - plot[1]), plot[2], plot[3]) if axis.side == "y" else \
+            (plot[0], plot[1], plot[0] + 0.1 * (plot[2] - plot[0]), plot[3])
+        return Outcome(findings=(Draft(message=f"value axis starts at {low:.3g}, not at 0: bar lengths exaggerate differences",
+                                       value=f"{low:.3g}", threshold="0", region=region),))
+    if high < -slack:
+        return Outcome(findings=(Draft(message=f"value axis ends at {high:.3g}, not at 0: bar lengths exaggerate differences",
+                                       value=f"{high:.3g}", threshold="0", region=plot),))
+    return Outcome()
+
+
+@rule(
+    id="tick-label-rotation",
+    applies_to=("bar", "line", "box", "histogram"),
+    severity="warning",
+    requires=("tick_label_angle",),
+    options=(Option("min_angle", 30.0, "rotation (degrees) from which labels count as rotated", minimum=0.0, maximum=90.0),),
+    rationale="""Rotated labels are read slowly and with head tilted; they usually mean the
+        categories do not fit along the axis.""",
+    fix="""Swap to horizontal bars so labels run horizontally, shorten or wrap the labels.""",
+)
+def tick_label_rotation(ctx: CheckContext) -> Outcome:
+    measured = ctx.measure("tick_label_angle")
+    limit = ctx.options["min_angle"]
+    if measured.angle < limit:
+        return Outcome()
+    return Outcome(findings=(Draft(message=f"tick labels rotated {measured.angle:.0f}°; at {limit:g}° or more they are hard to read",
+                                   value=f"{measured.angle:.0f}", threshold=f"{limit:g}", region=measured.region),))
+
+
+@rule(
+    id="bar-order",
+    applies_to=("bar",),
+    severity="info",
+    requires=("bars", "axes"),
+    options=(Option("tolerance", 0.01, "length difference (share of the longest bar) that counts as a tie", minimum=0.0),),
+    rationale="""Bars of unordered categories are easiest to compare sorted by value; categories
+        with a natural order (time, ranks, alphabetical lists) keep that order.""",
+    fix="""Sort the bars by value, unless the categories have an order of their own.""",
+)
+def bar_order(ctx: CheckContext) -> Outcome:
+    chart = ctx.measure("bars")
+    if chart.grouped or len(chart.stacks) < 3:
+        return Outcome()
+    lengths = [stack.length for stack in chart.stacks]
+    if monotone(lengths, ctx.options["tolerance"] * max(lengths)):
+        return Outcome()
+    axes = ctx.measure("axes")
+    axis = axes.x if chart.orientation == "vertical" else axes.y
+    labels = labels_at([stack.position for stack in chart.stacks], axis.ticks)
+    if labels is None:
+        return Outcome(unmeasured=True, reason="category labels not read")
+    if natural_order(labels):
+        return Outcome()
+    return Outcome(findings=(Draft(message=f"{len(labels)} bars neither sorted by value nor in a natural order of their labels",
+                                   value=", ".join(labels[:8]), threshold="sorted or natural order", region=axes.plot),))
+
+
+@rule(
+    id="bar-stack-depth",
+    applies_to=("bar",),
+    severity="warning",
+    requires=("bars",),
+    options=(Option("max_segments", 4, "most segments per stacked bar that passes", minimum=1),),
+    rationale="""Only the bottom segment of a stack sits on a common baseline; the others float
+        and cannot be compared across bars. The more segments, the less can be read.""",
+    fix="""Use grouped bars, small multiples, or fewer categories per stack.""",
+)
+def bar_stack_depth(ctx: CheckContext) -> Outcome:
+    chart = ctx.measure("bars")
+    limit = ctx.options["max_segments"]
+    deepest = max(chart.stacks, key=lambda s: len(s.segments))
+    if len(deepest.segments) <= limit:
+        return Outcome()
+    return Outcome(findings=(Draft(message=f"stacked bars of {len(deepest.segments)} segments; more than {limit} cannot be compared",
+                                   value=str(len(deepest.segments)), threshold=str(limit), region=deepest.bbox),))
+
+
+@rule(
+    id="chart-3d",
+    applies_to=("bar", "pie"),
+    severity="warning",
+    requires=("perspective",),
+    options=(Option("min_slanted_faces", 3, "slanted filled faces (3D box sides) that mark a 3D bar chart", minimum=1),
+             Option("min_pie_aspect", 0.85, "minor/major axis ratio of a pie below which it is tilted", minimum=0.1, maximum=1.0)),
+    rationale="""Perspective distorts lengths and angles: nearer bars and slices look larger than
+        their values, and bar tops cannot be read against the axis.""",
+    fix="""Draw the chart flat (2D).""",
+)
+def chart_3d(ctx: CheckContext) -> Outcome:
+    seen = ctx.measure("perspective")
+    if ctx.figure.chart_type == "pie":
+        if seen.pie_aspect is None:
+            return Outcome(unmeasured=True, reason="no pie outline found")
+        limit = ctx.options["min_pie_aspect"]
+        if seen.pie_aspect < limit:
+            return Outcome(findings=(Draft(message=f"pie drawn tilted (axis ratio {seen.pie_aspect:.2f}, below {limit:g}): "
+                                                   "perspective distorts slice sizes",
+                                           value=f"{seen.pie_aspect:.2f}", threshold=f"{limit:g}", region=seen.region),))
+        return Outcome()
+    limit = ctx.options["min_slanted_faces"]
+    if seen.slanted_faces >= limit:
+        return Outcome(findings=(Draft(message=f"{seen.slanted_faces} slanted faces: bars drawn in 3D perspective",
+                                       value=str(seen.slanted_faces), threshold=str(limit), region=seen.region),))
+    return Outcome()

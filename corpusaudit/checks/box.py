@@ -1,0 +1,32 @@
+"""Box plots: group order."""
+
+from __future__ import annotations
+
+from corpusaudit.checks._order import labels_at, monotone
+from corpusaudit.checks.registry import CheckContext, rule
+from corpusaudit.measure.axes import natural_order
+from corpusaudit.model import Draft, Option, Outcome
+
+
+@rule(
+    id="box-order",
+    applies_to=("box",),
+    severity="info",
+    requires=("boxes", "axes"),
+    options=(Option("tolerance", 1.0, "median difference (pixels) that counts as a tie", minimum=0.0),),
+    rationale="""Groups of unordered categories are easiest to compare sorted by their median;
+        groups with a natural order keep it.""",
+    fix="""Sort the boxes by median, unless the groups have an order of their own.""",
+)
+def box_order(ctx: CheckContext) -> Outcome:
+    boxes = ctx.measure("boxes")
+    if len(boxes) < 3 or monotone([b.median for b in boxes], ctx.options["tolerance"]):
+        return Outcome()
+    axes = ctx.measure("axes")
+    labels = labels_at([b.position for b in boxes], axes.x.ticks)
+    if labels is None:
+        return Outcome(unmeasured=True, reason="group labels not read")
+    if natural_order(labels):
+        return Outcome()
+    return Outcome(findings=(Draft(message=f"{len(boxes)} boxes neither sorted by median nor in a natural order of their labels",
+                                   value=", ".join(labels[:8]), threshold="sorted or natural order", region=axes.plot),))

@@ -1,0 +1,401 @@
+"""Charts with known truth for the chart checks: the fixture generator of the tests and the
+benchmark (benchmarks/checks.py).
+
+Each case is a matplotlib chart drawn from a seeded random spec, with the expected outcome
+of every chart rule it decides (truth[rule_id] -> bool) and the exact geometry it was
+drawn with (truth_values). It renders as a vector figure (matplotlib PDF placed on a
+page with PyMuPDF's show_pdf_page, read back with vector_evidence) or as a raster figure
+(PNG, optionally degraded by JPEG and downscaling). Names and numbers are invented.
+"""
+
+from __future__ import annotations
+
+import io
+from dataclasses import dataclass, field
+from typing import Any, Callable
+
+import numpy as np
+
+STYLES = ("default", "default", "ggplot", "seaborn-v0_8-whitegrid", "bmh", "classic", "seaborn-v0_8-ticks",
+          "tableau-colorblind10", "seaborn-v0_8-paper")
+_SYLLABLES = ("ka", "lo", "mi", "ren", "sa", "tor", "vel", "qu", "ni", "bo", "zan", "fe", "ul", "dra", "pim")
+MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
+RENDER_DPI = 150
+
+
+@dataclass
+class Case:
+    name: str
+    chart_type: str
+    draw: Callable[[Any], None]  # draws on a matplotlib Figure
+    truth: dict[str, bool]
+    truth_values: dict[str, Any] = field(default_factory=dict)
+    style: str = "default"
+    size: tuple[float, float] = (5.0, 3.5)
+    font_size: float = 10.0
+    projection: str | None = None
+
+
+def invented_names(rng: np.random.Generator, n: int) -> list[str]:
+    names: set[str] = set()
+    while len(names) < n:
+        names.add("".join(rng.choice(_SYLLABLES, size=rng.integers(2, 4))).capitalize())
+    return list(names)
+
+
+def unordered_names(rng: np.random.Generator, n: int) -> list[str]:
+    """Names that are not in alphabetical order either way."""
+    while True:
+        names = invented_names(rng, n)
+        folded = [s.lower() for s in names]
+        if folded != sorted(folded) and folded != sorted(folded, reverse=True):
+            return names
+
+
+def _unsorted(rng: np.random.Generator, values: list[float]) -> list[float]:
+    """A shuffle that is neither ascending nor descending, with a clear inversion."""
+    while True:
+        order = list(rng.permutation(values))
+        steps = np.diff(order)
+        if (steps > 0.05 * max(values)).any() and (steps < -0.05 * max(values)).any():
+            return order
+
+
+def _cyclic_sorted(values: list[float]) -> bool:
+    for start in range(len(values)):
+        rotated = values[start:] + values[:start]
+        steps = np.diff(rotated)
+        if (steps >= -1e-9).all() or (steps <= 1e-9).all():
+            return True
+    return False
+
+
+# ------------------------------------------------------------------ families
+
+
+def pie_case(rng: np.random.Generator, index: int) -> Case:
+    n = int(rng.integers(3, 10))
+    similar = bool(rng.random() < 0.4)
+    # Shares with relative gaps of at least 20 %, or one pair nearly equal (gap <= 3 %).
+    ratios = rng.uniform(0.55, 0.78, n - 1)
+    values = np.cumprod(np.concatenate([[1.0], ratios]))
+    if similar:
+        k = int(rng.integers(0, n - 1))
+        values[k + 1] = values[k] * rng.uniform(0.975, 0.995)
+    shares = list(values / values.sum())
+    shuffled = bool(rng.random() < 0.5) and n >= 4  # any 3 slices read round a circle are in order
+    if shuffled:
+        while _cyclic_sorted(shares):
+            shares = list(rng.permutation(shares))
+    labels = invented_names(rng, n)
+    label_mode = rng.choice(["none", "true", "false"], p=[0.3, 0.4, 0.3])
+    offset = float(rng.choice([-1, 1]) * rng.uniform(6, 15)) if label_mode == "false" else 0.0
+    printed = [100 * s for s in shares]
+    if label_mode == "false":
+        printed[0] += offset
+    donut = bool(rng.random() < 0.25)
+    edge = bool(rng.random() < 0.5)
+
+    def draw(fig):
+        ax = fig.add_subplot()
+        wedgeprops = {"linewidth": 1.2, "edgecolor": "white"} if edge else {}
+        if donut:
+            wedgeprops["width"] = 0.45
+        texts = None
+        if label_mode != "none":
+            texts = [f"{p:.1f}%" for p in printed]
+        wedges, *_ = ax.pie(shares, labels=labels if rng.random() < 0.5 else None, startangle=90, counterclock=False,
+                            wedgeprops=wedgeprops)
+        if texts:
+            for wedge, text in zip(wedges, texts):
+                angle = np.radians((wedge.theta1 + wedge.theta2) / 2)
+                radius = 0.78 if donut else 0.62
+                ax.text(radius * np.cos(angle), radius * np.sin(angle), text, ha="center", va="center", fontsize=8)
+
+    truth = {"pie-slice-count": n > 5, "pie-similar-slices": similar, "pie-order": shuffled, "chart-3d": False}
+    if label_mode != "none":
+        truth["pie-total"] = label_mode == "false"
+    return Case(f"pie-{index}", "pie", draw, truth, {"slices": n, "shares": shares})
+
+
+def pie3d_case(rng: np.random.Generator, index: int) -> Case:
+    shares = list(rng.dirichlet(np.ones(int(rng.integers(3, 6))) * 3))
+    tilt = float(rng.uniform(0.35, 0.6))
+
+    def draw(fig):  # a pie seen at an angle: the circle squeezed to an ellipse
+        ax = fig.add_subplot()
+        ax.pie(shares, startangle=90)
+        ax.set_aspect(tilt)
+
+    return Case(f"pie3d-{index}", "pie", draw, {"chart-3d": True}, {"tilt": tilt})
+
+
+def bar_case(rng: np.random.Generator, index: int) -> Case:
+    n = int(rng.integers(3, 9))
+    order_kind = rng.choice(["sorted", "natural", "unordered"])
+    values = list(np.round(rng.uniform(20, 100, n), 1))
+    if order_kind == "sorted":
+        values = sorted(values, reverse=bool(rng.random() < 0.5))
+        labels = unordered_names(rng, n)
+    elif order_kind == "natural":
+        values = _unsorted(rng, values)
+        start = int(rng.integers(0, 12 - n + 1)) if n <= 12 else 0
+        labels = list(MONTHS[start:start + n]) if rng.random() < 0.5 else [str(2000 + 2 * i) for i in range(n)]
+    else:
+        values = _unsorted(rng, values)
+        labels = unordered_names(rng, n)
+    truncated = bool(rng.random() < 0.4)
+    low = float(np.floor(min(values) * rng.uniform(0.5, 0.9) / 10) * 10) if truncated else 0.0
+    truncated = truncated and low > 0
+    rotation = float(rng.choice([0, 0, 30, 45, 60, 90]))
+    horizontal = bool(rng.random() < 0.25) and rotation == 0
+
+    def draw(fig):
+        ax = fig.add_subplot()
+        colour = f"C{int(rng.integers(0, 10))}"
+        if horizontal:
+            ax.barh(range(n), values, color=colour, tick_label=labels)
+            ax.invert_yaxis()
+            if truncated:
+                ax.set_xlim(low, max(values) * 1.05)
+        else:
+            ax.bar(range(n), values, color=colour, tick_label=labels)
+            if truncated:
+                ax.set_ylim(low, max(values) * 1.05)
+            if rotation:
+                for label in ax.get_xticklabels():
+                    label.set_rotation(rotation)
+                    label.set_ha("right" if rotation < 90 else "center")
+
+    truth = {"bar-baseline": truncated, "bar-order": order_kind == "unordered", "bar-stack-depth": False,
+             "chart-3d": False}
+    if not horizontal:
+        truth["tick-label-rotation"] = rotation >= 30
+    return Case(f"bar-{index}", "bar", draw, truth,
+                {"axis_min": low, "rotation": rotation if not horizontal else None, "horizontal": horizontal})
+
+
+def stacked_bar_case(rng: np.random.Generator, index: int) -> Case:
+    n = int(rng.integers(3, 7))
+    segments = int(rng.integers(2, 8))
+    data = rng.uniform(5, 20, (segments, n))
+
+    def draw(fig):
+        ax = fig.add_subplot()
+        bottom = np.zeros(n)
+        for k in range(segments):
+            ax.bar(range(n), data[k], bottom=bottom, color=f"C{k}", edgecolor="white" if k % 2 else None,
+                   tick_label=invented_names(rng, n) if k == 0 else None, label=f"Part {k + 1}")
+            bottom += data[k]
+        if rng.random() < 0.5:
+            ax.legend(loc="upper left", bbox_to_anchor=(1.0, 1.0), fontsize=7)
+
+    return Case(f"stacked-{index}", "bar", draw, {"bar-stack-depth": segments > 4, "bar-baseline": False},
+                {"segments": segments})
+
+
+def bar3d_case(rng: np.random.Generator, index: int) -> Case:
+    n = int(rng.integers(3, 7))
+    values = rng.uniform(1, 10, n)
+
+    def draw(fig):
+        ax = fig.add_subplot(projection="3d")
+        ax.bar3d(np.arange(n), np.zeros(n), np.zeros(n), 0.6, 0.6, values, color=f"C{int(rng.integers(0, 10))}", shade=True)
+
+    return Case(f"bar3d-{index}", "bar", draw, {"chart-3d": True}, {})
+
+
+def line_case(rng: np.random.Generator, index: int) -> Case:
+    series = int(rng.integers(1, 9))
+    kind = rng.choice(["numeric", "categorical", "uneven", "months"])
+    n = int(rng.integers(5, 9))
+    gaps = bool(rng.random() < 0.4) and kind == "numeric"
+    markers = bool(rng.random() < 0.4)
+    if kind == "numeric":
+        if gaps:
+            x = np.sort(rng.choice(np.arange(0, 60), n, replace=False)).astype(float)
+            while np.diff(x).max() / np.diff(x).min() <= 3:
+                x = np.sort(rng.choice(np.arange(0, 60), n, replace=False)).astype(float)
+        else:
+            x = np.arange(n, dtype=float) * 5
+    rotation = float(rng.choice([0, 0, 0, 45, 90]))
+    uneven_labels = None
+    if kind == "uneven":
+        steps = rng.permutation([1, 1, 2, 5, 5, 10, 2, 3][: n - 1])
+        uneven_labels = [str(1990 + int(s)) for s in np.concatenate([[0], np.cumsum(steps)])]
+    names = unordered_names(rng, n)
+    styles = ["-", "--", ":", "-."]
+
+    def draw(fig):
+        ax = fig.add_subplot()
+        for k in range(series):
+            y = np.cumsum(rng.normal(0, 1, n)) + 3 * k
+            style = styles[k // 10 % 4]
+            marker = "o" if markers else None
+            if kind == "numeric":
+                ax.plot(x, y, style, color=f"C{k % 10}", marker=marker)
+            elif kind == "categorical":
+                ax.plot(names, y, style, color=f"C{k % 10}", marker=marker)
+            elif kind == "months":
+                ax.plot(list(MONTHS[:n]), y, style, color=f"C{k % 10}", marker=marker)
+            else:
+                ax.plot(uneven_labels, y, style, color=f"C{k % 10}", marker=marker)
+        if rotation:
+            for label in ax.get_xticklabels():
+                label.set_rotation(rotation)
+        if series > 1 and rng.random() < 0.4:
+            ax.legend([f"Series {k + 1}" for k in range(series)], fontsize=6, loc="upper left", bbox_to_anchor=(1.0, 1.0))
+
+    truth = {"line-series-count": series > 5, "line-on-categories": kind == "categorical",
+             "line-uneven-axis": kind == "uneven", "tick-label-rotation": rotation >= 30}
+    if kind == "numeric":
+        truth["line-marker-gaps"] = gaps and not markers
+    return Case(f"line-{index}", "line", draw, truth, {"series": series, "rotation": rotation})
+
+
+def area_case(rng: np.random.Generator, index: int) -> Case:
+    layers = int(rng.integers(1, 8))
+    stacked = bool(rng.random() < 0.5) and layers >= 2
+    x = np.arange(20)
+    ys = [np.abs(np.cumsum(rng.normal(0, 1, 20))) + 2 + k for k in range(layers)]
+
+    def draw(fig):
+        ax = fig.add_subplot()
+        if stacked:
+            ax.stackplot(x, *ys, colors=[f"C{k}" for k in range(layers)])
+        else:
+            for k, y in enumerate(ys):
+                ax.fill_between(x, 0, y, color=f"C{k}", alpha=0.4 if layers > 1 else 1.0, linewidth=0)
+
+    return Case(f"area-{index}", "area", draw, {"area-stacked": stacked, "line-series-count": layers > 5},
+                {"series": layers})
+
+
+def scatter_case(rng: np.random.Generator, index: int) -> Case:
+    dense = bool(rng.random() < 0.5)
+    edge = bool(rng.random() < 0.4)
+    if dense:
+        n = int(rng.integers(400, 900))
+        pts = rng.normal(0, 1, (n, 2))
+        size = float(rng.uniform(40, 90))
+    else:
+        side = int(rng.integers(4, 7))
+        grid = np.stack(np.meshgrid(np.arange(side), np.arange(side)), -1).reshape(-1, 2).astype(float)
+        pts = grid + rng.uniform(-0.15, 0.15, grid.shape)
+        size = float(rng.uniform(10, 25))
+    colour = f"C{int(rng.integers(0, 10))}"
+
+    def draw(fig):
+        ax = fig.add_subplot()
+        ax.scatter(pts[:, 0], pts[:, 1], s=size, color=colour)
+        if edge:
+            ax.set_xlim(pts[:, 0].min(), pts[:, 0].max())
+        else:
+            margin = 0.08 * np.ptp(pts[:, 0])
+            ax.set_xlim(pts[:, 0].min() - margin, pts[:, 0].max() + margin)
+            ax.set_ylim(pts[:, 1].min() - 0.08 * np.ptp(pts[:, 1]), pts[:, 1].max() + 0.08 * np.ptp(pts[:, 1]))
+
+    return Case(f"scatter-{index}", "scatter", draw, {"scatter-overplotting": dense, "scatter-edge-points": edge}, {})
+
+
+def box_case(rng: np.random.Generator, index: int) -> Case:
+    n = int(rng.integers(3, 7))
+    order_kind = rng.choice(["sorted", "natural", "unordered"])
+    medians = list(rng.uniform(10, 50, n))
+    if order_kind == "sorted":
+        medians = sorted(medians)
+        labels = unordered_names(rng, n)
+    else:
+        medians = _unsorted(rng, medians)
+        labels = [f"Q{i + 1}" for i in range(n)] if order_kind == "natural" else unordered_names(rng, n)
+    data = [rng.normal(m, 4, 60) for m in medians]
+    rotation = float(rng.choice([0, 0, 45]))
+
+    def draw(fig):
+        ax = fig.add_subplot()
+        ax.boxplot(data, showfliers=bool(rng.random() < 0.5))
+        ax.set_xticks(range(1, n + 1), labels, rotation=rotation)
+
+    return Case(f"box-{index}", "box", draw,
+                {"box-order": order_kind == "unordered", "tick-label-rotation": rotation >= 30}, {})
+
+
+FAMILIES: tuple[tuple[Callable[[np.random.Generator, int], Case], float], ...] = (
+    (pie_case, 0.2), (pie3d_case, 0.03), (bar_case, 0.2), (stacked_bar_case, 0.08), (bar3d_case, 0.03),
+    (line_case, 0.18), (area_case, 0.08), (scatter_case, 0.1), (box_case, 0.1),
+)
+
+
+def generate(count: int, seed: int = 20240517) -> list[Case]:
+    """count cases, deterministic for a seed; families in fixed proportions."""
+    rng = np.random.default_rng(seed)
+    weights = np.array([w for _, w in FAMILIES])
+    cases = []
+    for index in range(count):
+        family = FAMILIES[int(rng.choice(len(FAMILIES), p=weights / weights.sum()))][0]
+        case = family(rng, index)
+        case.style = str(rng.choice(STYLES))
+        case.size = (float(rng.uniform(4.0, 7.0)), float(rng.uniform(3.0, 4.8)))
+        case.font_size = float(rng.uniform(8, 12))
+        cases.append(case)
+    return cases
+
+
+# ------------------------------------------------------------------ rendering
+
+
+def _draw(case: Case, backend_format: str, dpi: int) -> bytes:
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.style
+    from matplotlib.figure import Figure as MplFigure
+
+    with matplotlib.style.context(case.style), matplotlib.rc_context({"font.size": case.font_size, "pdf.fonttype": 42}):
+        fig = MplFigure(figsize=case.size)
+        case.draw(fig)
+        buffer = io.BytesIO()
+        fig.savefig(buffer, format=backend_format, dpi=dpi)
+    return buffer.getvalue()
+
+
+def vector_figure(case: Case, dpi: int = RENDER_DPI):
+    """The case as a vector figure: PDF placed on a page, read back as PyMuPDF would extract it."""
+    import pymupdf
+
+    from corpusaudit.extract.vector_evidence import vector_evidence
+    from corpusaudit.model import Figure
+
+    source = pymupdf.open("pdf", _draw(case, "pdf", 72))
+    page_doc = pymupdf.open()
+    page = page_doc.new_page(width=612, height=792)
+    rect = pymupdf.Rect(36, 60, 36 + source[0].rect.width, 60 + source[0].rect.height)
+    page.show_pdf_page(rect, source, 0)
+    scale = dpi / 72.0
+    evidence = vector_evidence(page, rect, scale)
+    pix = page.get_pixmap(dpi=dpi, clip=rect, alpha=False)
+    pixels = np.frombuffer(pix.samples, np.uint8).reshape(pix.height, pix.width, pix.n)[:, :, :3].copy()
+    return Figure(figure_id=case.name + "-v", document_id="bench", path=case.name + ".pdf", page=1, index=0,
+                  bbox=(rect.x0, rect.y0, rect.x1, rect.y1), source="vector", width_px=pixels.shape[1],
+                  height_px=pixels.shape[0], pixels=pixels, vector=evidence, chart_type=case.chart_type)
+
+
+def raster_figure(case: Case, rng: np.random.Generator | None = None, dpi: int = RENDER_DPI):
+    """The case as a raster figure (PNG), degraded by JPEG and downscaling when rng says so."""
+    import cv2
+    from PIL import Image
+
+    from corpusaudit.model import Figure
+
+    rng = rng or np.random.default_rng(0)
+    pixels = np.asarray(Image.open(io.BytesIO(_draw(case, "png", dpi))).convert("RGB"))
+    if rng.random() < 0.25:
+        factor = float(rng.uniform(0.75, 0.9))
+        pixels = cv2.resize(pixels, None, fx=factor, fy=factor, interpolation=cv2.INTER_AREA)
+    if rng.random() < 0.3:
+        ok, encoded = cv2.imencode(".jpg", pixels[:, :, ::-1], [cv2.IMWRITE_JPEG_QUALITY, int(rng.integers(80, 95))])
+        pixels = cv2.imdecode(encoded, cv2.IMREAD_COLOR)[:, :, ::-1]
+    pixels = np.ascontiguousarray(pixels)
+    return Figure(figure_id=case.name + "-r", document_id="bench", path=case.name + ".png", page=1, index=0,
+                  bbox=(0, 0, pixels.shape[1], pixels.shape[0]), source="raster", width_px=pixels.shape[1],
+                  height_px=pixels.shape[0], effective_ppi=float(dpi), pixels=pixels, chart_type=case.chart_type)

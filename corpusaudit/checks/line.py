@@ -1,0 +1,133 @@
+"""Line and area charts: number of series, lines across categories, uneven axes, hidden
+samples, stacked areas."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from corpusaudit.checks.registry import CheckContext, rule
+from corpusaudit.measure.axes import is_ordered_vocabulary
+from corpusaudit.model import Draft, MeasurementUnavailable, Option, Outcome
+
+
+@rule(
+    id="line-series-count",
+    applies_to=("line", "area"),
+    severity="warning",
+    requires=("line_series",),
+    options=(Option("max_series", 5, "most series that passes", minimum=1),),
+    rationale="""Beyond a handful of lines, colours cannot be told apart and lines tangle
+        ('spaghetti chart').""",
+    fix="""Highlight the series that matter and grey the rest, or use small multiples.""",
+)
+def line_series_count(ctx: CheckContext) -> Outcome:
+    count = len(ctx.measure("line_series"))
+    if ctx.figure.chart_type == "area":
+        try:
+            count = max(count, ctx.measure("areas").count)
+        except MeasurementUnavailable:
+            pass
+    limit = ctx.options["max_series"]
+    if count <= limit:
+        return Outcome()
+    return Outcome(findings=(Draft(message=f"{count} series; more than {limit} cannot be told apart",
+                                   value=str(count), threshold=str(limit), region=ctx.measure("plot_area")),))
+
+
+@rule(
+    id="line-on-categories",
+    applies_to=("line",),
+    severity="warning",
+    requires=("axes",),
+    options=(Option("min_labels", 3, "category labels needed before judging", minimum=2),),
+    rationale="""A line implies values between its points and a sequence; joining unordered
+        categories (countries, products) invents both.""",
+    fix="""Use bars or dots for categories; keep lines for ordered x values such as time.""",
+)
+def line_on_categories(ctx: CheckContext) -> Outcome:
+    axis = ctx.measure("axes").x
+    labels = axis.labels
+    if axis.kind != "categorical" or len(labels) < ctx.options["min_labels"] or is_ordered_vocabulary(labels):
+        return Outcome()
+    region = tuple(np.array([t.bbox for t in axis.ticks]).min(axis=0)[:2]) + tuple(np.array([t.bbox for t in axis.ticks]).max(axis=0)[2:])
+    return Outcome(findings=(Draft(message=f"line drawn across {len(labels)} unordered categories ({', '.join(labels[:4])}...)",
+                                   value=str(len(labels)), threshold="ordered x values", region=region),))
+
+
+@rule(
+    id="line-uneven-axis",
+    applies_to=("line",),
+    severity="warning",
+    requires=("axes",),
+    options=(Option("max_step_ratio", 1.25, "largest/smallest labelled step that still counts as even", minimum=1.0),),
+    rationale="""When numeric x labels with uneven steps (2000, 2005, 2010, 2012) sit at equal
+        distances, slopes between them are distorted.""",
+    fix="""Use a numeric (or date) x axis so distances follow the values.""",
+)
+def line_uneven_axis(ctx: CheckContext) -> Outcome:
+    axis = ctx.measure("axes").x
+    ticks = [t for t in axis.ticks if t.value is not None]
+    if len(ticks) < 3 or len(ticks) < len(axis.ticks):
+        return Outcome()
+    pixels = np.diff([t.pixel for t in ticks])
+    values = np.diff([t.value for t in ticks])
+    if not (np.all(values > 0) or np.all(values < 0)) or np.any(pixels <= 0):
+        return Outcome()
+    even_spacing = pixels.max() / pixels.min() <= 1.05
+    step_ratio = np.abs(values).max() / np.abs(values).min()
+    limit = ctx.options["max_step_ratio"]
+    if not even_spacing or step_ratio <= limit:
+        return Outcome()
+    steps = ", ".join(f"{abs(v):g}" for v in values)
+    return Outcome(findings=(Draft(message=f"x labels step by {steps} but are drawn evenly spaced",
+                                   value=f"{step_ratio:.2f}", threshold=f"{limit:g}",
+                                   region=(ticks[0].bbox[0], ticks[0].bbox[1], ticks[-1].bbox[2], ticks[-1].bbox[3])),))
+
+
+@rule(
+    id="line-marker-gaps",
+    applies_to=("line",),
+    severity="info",
+    requires=("line_series",),
+    options=(Option("max_step_ratio", 2.0, "largest/smallest x step between samples that passes without markers", minimum=1.0),
+             Option("max_samples", 100, "series with more samples are continuous curves and are not judged", minimum=4)),
+    rationale="""A line without markers suggests evenly or densely sampled data; when samples are
+        unevenly spaced, the reader cannot see where the data are and where the line interpolates.""",
+    fix="""Draw a marker at each sample.""",
+)
+def line_marker_gaps(ctx: CheckContext) -> Outcome:
+    series = ctx.measure("line_series")
+    if not series:
+        return Outcome()
+    if all(s.has_markers is None for s in series):
+        return Outcome(unmeasured=True, reason="sample positions are not visible in pixels")
+    limit = ctx.options["max_step_ratio"]
+    for line in series:
+        if line.has_markers:
+            continue
+        xs = np.unique(np.round([x for x, _ in line.points], 1))
+        if not 4 <= len(xs) <= ctx.options["max_samples"]:
+            continue
+        steps = np.diff(xs)
+        ratio = steps.max() / max(steps.min(), 1e-6)
+        if ratio > limit:
+            return Outcome(findings=(Draft(message=f"samples {ratio:.1f}x unevenly spaced along x, drawn without markers",
+                                           value=f"{ratio:.1f}", threshold=f"{limit:g}", region=line.bbox),))
+    return Outcome()
+
+
+@rule(
+    id="area-stacked",
+    applies_to=("area",),
+    severity="info",
+    requires=("areas",),
+    rationale="""In a stacked area chart only the lowest band sits on a flat baseline; the others
+        ride on the bands below and their changes cannot be read.""",
+    fix="""Use lines or small multiples when the series should be compared.""",
+)
+def area_stacked(ctx: CheckContext) -> Outcome:
+    layers = ctx.measure("areas")
+    if not layers.stacked:
+        return Outcome()
+    return Outcome(findings=(Draft(message=f"{layers.count} stacked areas: upper bands have a moving baseline",
+                                   value=str(layers.count), threshold="not stacked", region=layers.region),))

@@ -1,0 +1,102 @@
+"""Pie charts: number of slices, slices too alike to compare, size order, labelled total."""
+
+from __future__ import annotations
+
+from corpusaudit.checks._order import cyclic_monotone
+from corpusaudit.checks.registry import CheckContext, rule
+from corpusaudit.model import Draft, Option, Outcome
+
+
+@rule(
+    id="pie-slice-count",
+    applies_to=("pie",),
+    severity="warning",
+    requires=("pie",),
+    options=(Option("max_slices", 5, "largest number of slices that passes", minimum=2),),
+    rationale="""Angles and areas are judged far less accurately than lengths; with many slices the
+        small ones cannot be compared or even labelled.""",
+    fix="""Keep the largest few slices and group the rest as 'other', or draw a sorted bar chart.""",
+)
+def pie_slice_count(ctx: CheckContext) -> Outcome:
+    pie = ctx.measure("pie")
+    limit = ctx.options["max_slices"]
+    count = len(pie.slices)
+    if count <= limit:
+        return Outcome()
+    return Outcome(findings=(Draft(message=f"{count} slices; more than {limit} are hard to compare",
+                                   value=str(count), threshold=str(limit), region=pie.bbox),))
+
+
+@rule(
+    id="pie-similar-slices",
+    applies_to=("pie",),
+    severity="warning",
+    requires=("pie",),
+    options=(Option("min_relative_difference", 0.1,
+                    "smallest difference between two slices, as a share of the larger one, that readers can rank",
+                    "common practice (angle judgements are coarse: Cleveland & McGill 1984 rank angle below length)",
+                    minimum=0.0, maximum=1.0),),
+    rationale="""Readers cannot tell which of two nearly equal slices is larger: the comparison the
+        chart invites cannot be made.""",
+    fix="""Show the values as a sorted bar chart, or print the values on the slices.""",
+)
+def pie_similar_slices(ctx: CheckContext) -> Outcome:
+    pie = ctx.measure("pie")
+    shares = sorted(pie.shares, reverse=True)
+    if len(shares) < 2:
+        return Outcome()
+    gaps = [((a - b) / a, a, b) for a, b in zip(shares, shares[1:]) if a > 0]
+    relative, larger, smaller = min(gaps)
+    limit = ctx.options["min_relative_difference"]
+    if relative >= limit:
+        return Outcome()
+    return Outcome(findings=(Draft(
+        message=f"slices of {larger:.1%} and {smaller:.1%} differ by {relative:.0%} of the larger; "
+                f"below {limit:.0%} readers cannot rank them",
+        value=f"{relative:.3f}", threshold=f"{limit}", region=pie.bbox),))
+
+
+@rule(
+    id="pie-order",
+    applies_to=("pie",),
+    severity="info",
+    requires=("pie",),
+    options=(Option("tolerance", 0.005, "share difference (0..1) that counts as a tie", minimum=0.0),),
+    rationale="""Slices placed in size order (largest first, going round) let readers rank them
+        without comparing angles across the circle.""",
+    fix="""Sort the slices by size, starting at 12 o'clock.""",
+)
+def pie_order(ctx: CheckContext) -> Outcome:
+    pie = ctx.measure("pie")
+    shares = pie.shares
+    if len(shares) < 3 or cyclic_monotone(shares, ctx.options["tolerance"]):
+        return Outcome()
+    listed = ", ".join(f"{s:.0%}" for s in shares)
+    return Outcome(findings=(Draft(message=f"slices are not in size order going round ({listed})",
+                                   value=listed, threshold="sorted", region=pie.bbox),))
+
+
+@rule(
+    id="pie-total",
+    applies_to=("pie",),
+    severity="warning",
+    requires=("pie", "pie_percentages"),
+    options=(Option("tolerance_points", 1.5, "allowed distance of the sum from 100, in percentage points",
+                    "common practice: rounding each of up to ~10 labels to 0.5 point", minimum=0.0),),
+    rationale="""Percentages printed on a pie are parts of one whole: if they do not add up to 100
+        the data, the rounding or the chart type is wrong.""",
+    fix="""Check the figures; if categories overlap (several answers allowed) use a bar chart.""",
+)
+def pie_total(ctx: CheckContext) -> Outcome:
+    pie = ctx.measure("pie")
+    labels = ctx.measure("pie_percentages")
+    if not labels:
+        return Outcome()
+    if len(labels) != len(pie.slices):
+        return Outcome(unmeasured=True, reason=f"{len(labels)} percentages read for {len(pie.slices)} slices")
+    total = sum(p.value for p in labels)
+    limit = ctx.options["tolerance_points"]
+    if abs(total - 100.0) <= limit:
+        return Outcome()
+    return Outcome(findings=(Draft(message=f"labelled percentages add up to {total:g}%, not 100% (tolerance {limit:g} points)",
+                                   value=f"{total:g}", threshold=f"100 ± {limit:g}", region=pie.bbox),))

@@ -1,0 +1,138 @@
+"""Scatter markers: count, size, the share of marker area hidden by overlap, and markers
+on or cut by the plot frame.
+
+Hidden share is 1 - (area covered by the union of markers) / (sum of marker areas).
+Vector: exact, by painting every marker's disk. Raster: isolated blobs give the size of
+one marker; in clumps the number of markers is estimated from local coverage c under a
+random-placement model (n a / S = -ln(1 - c)), so heavily overlapped clumps count for the
+markers they hide.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import cv2
+import numpy as np
+
+from corpusaudit.measure import measurement
+from corpusaudit.measure.legend import in_any
+from corpusaudit.measure.shapes import background_rgb, colour_distance, component_stats, intersect, is_vector, require_pixels
+from corpusaudit.model import BBox, Figure, MeasurementUnavailable
+
+
+@dataclass(frozen=True)
+class Markers:
+    count: int  # markers found (raster: estimated)
+    radius: float  # typical marker radius, pixels
+    hidden_share: float  # 0..1
+    edge_count: int  # markers touching or cut by the plot frame
+    edge_boxes: tuple[BBox, ...]
+    dense_region: BBox | None  # where most overlap is
+
+
+def _vector_markers(figure: Figure, plot: BBox, frames: list[BBox]) -> Markers:
+    size = 0.06 * max(plot[2] - plot[0], plot[3] - plot[1])
+    boxes = []
+    for path in figure.vector.paths:
+        x0, y0, x1, y1 = path.bbox
+        if not path.closed or path.is_rect and "f" in path.kind and max(x1 - x0, y1 - y0) > size:
+            continue
+        if max(x1 - x0, y1 - y0) > size or max(x1 - x0, y1 - y0) < 1.0:
+            continue
+        if intersect(path.bbox, plot) is None or in_any(path.bbox, frames):
+            continue
+        boxes.append(path.bbox)
+    if len(boxes) < 3:
+        raise MeasurementUnavailable("fewer than three markers found")
+    array = np.array(boxes)
+    centres = np.column_stack([(array[:, 0] + array[:, 2]) / 2, (array[:, 1] + array[:, 3]) / 2])
+    radii = np.maximum((array[:, 2] - array[:, 0]), (array[:, 3] - array[:, 1])) / 2
+    scale = 2.0  # paint at 2x for sub-pixel markers
+    width, height = int((plot[2] - plot[0] + 4 * radii.max()) * scale) + 2, int((plot[3] - plot[1] + 4 * radii.max()) * scale) + 2
+    origin = np.array([plot[0] - 2 * radii.max(), plot[1] - 2 * radii.max()])
+    canvas = np.zeros((height, width), np.uint8)
+    own = 0.0
+    for (cx, cy), r in zip(centres, radii):
+        centre = tuple(int(round(v)) for v in ((np.array([cx, cy]) - origin) * scale))
+        radius = max(1, int(round(r * scale)))
+        cv2.circle(canvas, centre, radius, 1, thickness=-1)
+        own += _disk_pixels(radius)
+    hidden = max(0.0, 1.0 - canvas.sum() / own)
+    edge = [tuple(b) for b, (cx, cy), r in zip(boxes, centres, radii)
+            if b[0] < plot[0] + 0.5 or b[1] < plot[1] + 0.5 or b[2] > plot[2] - 0.5 or b[3] > plot[3] - 0.5]
+    return Markers(count=len(boxes), radius=float(np.median(radii)), hidden_share=float(hidden),
+                   edge_count=len(edge), edge_boxes=tuple(edge), dense_region=_dense_region(centres, plot))
+
+
+_DISKS: dict[int, int] = {}
+
+
+def _disk_pixels(radius: int) -> int:
+    if radius not in _DISKS:
+        template = np.zeros((2 * radius + 3, 2 * radius + 3), np.uint8)
+        cv2.circle(template, (radius + 1, radius + 1), radius, 1, thickness=-1)
+        _DISKS[radius] = int(template.sum())
+    return _DISKS[radius]
+
+
+def _dense_region(centres: np.ndarray, plot: BBox) -> BBox:
+    """The box around the densest quarter of the markers."""
+    if len(centres) < 4:
+        return plot
+    middle = np.median(centres, axis=0)
+    nearest = centres[np.argsort(np.hypot(*(centres - middle).T))[: max(4, len(centres) // 4)]]
+    return (float(nearest[:, 0].min()), float(nearest[:, 1].min()), float(nearest[:, 0].max()), float(nearest[:, 1].max()))
+
+
+def _raster_markers(rgb: np.ndarray, plot: BBox) -> Markers:
+    x0, y0, x1, y1 = (int(round(v)) for v in plot)
+    inner = np.ascontiguousarray(rgb[y0 + 2:y1 - 1, x0 + 2:x1 - 1])
+    if inner.size == 0:
+        raise MeasurementUnavailable("empty plot area")
+    panel = background_rgb(inner)
+    ink = (colour_distance(inner, panel) > 60).astype(np.uint8)
+    ink = cv2.morphologyEx(ink, cv2.MORPH_OPEN, np.ones((3, 3), np.uint8))  # grid lines and text strokes go
+    labels, stats, centroids = component_stats(ink, min_area=4)
+    if len(stats) < 3:
+        raise MeasurementUnavailable("fewer than three markers found")
+    areas = stats[:, 5].astype(float)
+    w, h = stats[:, 3].astype(float), stats[:, 4].astype(float)
+    round_blobs = (np.abs(w - h) <= 0.25 * np.maximum(w, h)) & (areas >= 0.6 * w * h)
+    if round_blobs.sum() < 3:
+        raise MeasurementUnavailable("no isolated markers to measure their size")
+    single = float(np.median(areas[round_blobs & (areas <= 2.5 * np.percentile(areas[round_blobs], 25))]))
+    radius = float(np.sqrt(single / np.pi))
+    total_area, visible_area = 0.0, 0.0
+    cell = max(4, int(6 * radius))
+    for index, (_, bx, by, bw, bh, area) in enumerate(stats):
+        if area <= 1.6 * single:
+            total_area += area
+            visible_area += area
+            continue
+        blob = labels[by:by + bh, bx:bx + bw] == stats[index, 0]
+        for cy in range(0, bh, cell):
+            for cx in range(0, bw, cell):
+                piece = blob[cy:cy + cell, cx:cx + cell]
+                covered = float(piece.sum())
+                if covered == 0:
+                    continue
+                coverage = min(covered / piece.size, 0.97)
+                total_area += -np.log(1.0 - coverage) * piece.size if coverage > 0.5 else covered
+                visible_area += covered
+    hidden = max(0.0, 1.0 - visible_area / total_area) if total_area else 0.0
+    frame = ink.shape
+    edge = [(float(x0 + 2 + bx), float(y0 + 2 + by), float(x0 + 2 + bx + bw), float(y0 + 2 + by + bh))
+            for _, bx, by, bw, bh, area in stats
+            if area <= 2.5 * single and (bx <= 1 or by <= 1 or bx + bw >= frame[1] - 1 or by + bh >= frame[0] - 1)]
+    centres = centroids + [x0 + 2, y0 + 2]
+    return Markers(count=int(round(total_area / single)), radius=radius, hidden_share=float(hidden),
+                   edge_count=len(edge), edge_boxes=tuple(edge), dense_region=_dense_region(centres, plot))
+
+
+@measurement("markers")
+def markers(figure: Figure, measurements) -> Markers:
+    plot = measurements.get("plot_area")
+    if is_vector(figure):
+        return _vector_markers(figure, plot, measurements.get("legend_boxes"))
+    return _raster_markers(require_pixels(figure), plot)

@@ -1,0 +1,110 @@
+"""Text of a figure: numbers in labels and, for rasters, text recognition of chosen strips.
+
+Vector figures state their text exactly (figure.vector.texts). Rasters are read with
+tesseract through pytesseract, only in the strips a measurement asks for, and the words
+are cached per figure. When tesseract is not installed, OCR raises
+MeasurementUnavailable so the rules that need text are listed as unmeasured.
+"""
+
+from __future__ import annotations
+
+import functools
+import re
+import shutil
+
+import numpy as np
+
+from corpusaudit.model import BBox, MeasurementUnavailable, TextSpan
+
+OCR_UNAVAILABLE = "text recognition unavailable (install tesseract-ocr)"
+_NUMBER = re.compile(r"^[(\[]?([-+]?)(\d{1,3}(?:[,\u202f\u2009 ]\d{3})+|\d*\.?\d+)(?:[eE]([-+]?\d+))?\s*(%|[kKMB])?[)\]]?$")
+_SCALE = {"k": 1e3, "K": 1e3, "M": 1e6, "B": 1e9, "%": 1.0, None: 1.0}
+_MINUS = str.maketrans({"\u2212": "-", "\u2013": "-", "\u2012": "-", "$": "", "€": "", "£": ""})
+
+
+def parse_number(text: str) -> float | None:
+    """The number a tick or slice label states ('−20', '1,000', '2.5k', '40%'), else None."""
+    cleaned = text.strip().translate(_MINUS).replace(" ", "")
+    match = _NUMBER.match(cleaned)
+    if not match:
+        return None
+    sign, digits, exponent, suffix = match.groups()
+    value = float(re.sub(r"[,\u202f\u2009 ]", "", digits)) * _SCALE[suffix]
+    if exponent:
+        value *= 10.0 ** int(exponent)
+    return -value if sign == "-" else value
+
+
+def parse_percentage(text: str) -> float | None:
+    """The percentage of a label that ends in '%' ('23.5%', 'Alpha 12%'), else None."""
+    match = re.search(r"(\d+(?:[.,]\d+)?)\s*%\s*$", text.strip())
+    return float(match.group(1).replace(",", ".")) if match else None
+
+
+@functools.cache
+def ocr_available() -> bool:
+    if shutil.which("tesseract") is None:
+        return False
+    try:
+        import pytesseract
+        pytesseract.get_tesseract_version()
+    except Exception:  # the wrapper is missing or the binary does not run
+        return False
+    return True
+
+
+def ocr_words(rgb: np.ndarray, region: BBox, *, psm: int = 11, whitelist: str = "",
+              upscale: float = 2.0, min_confidence: float = 30.0) -> list[TextSpan]:
+    """Words tesseract reads inside region of an RGB image, with boxes in image pixels.
+
+    The strip is upscaled (tesseract reads glyphs of ~20 px best) and binarised to grey.
+    Raises MeasurementUnavailable when tesseract is not installed.
+    """
+    if not ocr_available():
+        raise MeasurementUnavailable(OCR_UNAVAILABLE)
+    import cv2
+    import pytesseract
+
+    h, w = rgb.shape[:2]
+    x0, y0 = max(0, int(region[0])), max(0, int(region[1]))
+    x1, y1 = min(w, int(np.ceil(region[2]))), min(h, int(np.ceil(region[3])))
+    if x1 - x0 < 4 or y1 - y0 < 4:
+        return []
+    grey = cv2.cvtColor(np.ascontiguousarray(rgb[y0:y1, x0:x1]), cv2.COLOR_RGB2GRAY)
+    if np.median(grey) < 128:  # light text on a dark background: tesseract wants dark on light
+        grey = 255 - grey
+    grey = cv2.resize(grey, None, fx=upscale, fy=upscale, interpolation=cv2.INTER_CUBIC)
+    grey = cv2.copyMakeBorder(grey, 10, 10, 10, 10, cv2.BORDER_REPLICATE)
+    config = f"--psm {psm}" + (f" -c tessedit_char_whitelist={whitelist}" if whitelist else "")
+    data = pytesseract.image_to_data(grey, config=config, output_type=pytesseract.Output.DICT)
+    words: list[TextSpan] = []
+    for text, conf, left, top, width, height in zip(data["text"], data["conf"], data["left"], data["top"],
+                                                    data["width"], data["height"]):
+        text = text.strip()
+        if not text or float(conf) < min_confidence:
+            continue
+        bx0 = x0 + (left - 10) / upscale
+        by0 = y0 + (top - 10) / upscale
+        words.append(TextSpan(text=text, bbox=(bx0, by0, bx0 + width / upscale, by0 + height / upscale),
+                              size_pt=0.0, angle=0.0, font="ocr"))
+    return words
+
+
+def merge_words_into_lines(words: list[TextSpan], gap_factor: float = 0.8) -> list[TextSpan]:
+    """Join horizontally adjacent OCR words of one line ('Alpha' 'Beta' -> 'Alpha Beta')."""
+    ordered = sorted(words, key=lambda s: (s.bbox[1], s.bbox[0]))
+    lines: list[TextSpan] = []
+    for word in sorted(ordered, key=lambda s: s.bbox[0]):
+        height = word.bbox[3] - word.bbox[1]
+        for index, line in enumerate(lines):
+            lh = line.bbox[3] - line.bbox[1]
+            same_row = abs((line.bbox[1] + line.bbox[3]) - (word.bbox[1] + word.bbox[3])) / 2 < 0.5 * max(lh, height)
+            if same_row and 0 <= word.bbox[0] - line.bbox[2] < gap_factor * max(lh, height):
+                lines[index] = TextSpan(text=f"{line.text} {word.text}",
+                                        bbox=(line.bbox[0], min(line.bbox[1], word.bbox[1]),
+                                              word.bbox[2], max(line.bbox[3], word.bbox[3])),
+                                        size_pt=0.0, angle=0.0, font="ocr")
+                break
+        else:
+            lines.append(word)
+    return lines

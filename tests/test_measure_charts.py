@@ -1,0 +1,89 @@
+"""Chart measurements against figures whose geometry is known exactly.
+
+Reference: matplotlib draws the given shares, bar heights, axis limits and label
+rotations exactly; the measurements must read them back from the PDF (vector) and from
+the rendered pixels (raster).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from corpusaudit.checks.cases import Case, raster_figure, vector_figure
+from corpusaudit.measure import Measurements
+from corpusaudit.measure.axes import natural_order
+from corpusaudit.measure.text import ocr_available, parse_number, parse_percentage
+
+needs_ocr = pytest.mark.skipif(not ocr_available(), reason="tesseract-ocr not installed")
+SHARES = [0.4, 0.25, 0.2, 0.1, 0.05]
+HEIGHTS = [50.0, 70.0, 90.0, 65.0]
+
+
+def _pie(fig):
+    fig.add_subplot().pie(SHARES)
+
+
+def _bars(fig):
+    ax = fig.add_subplot()
+    ax.bar(["Kalo", "Mireb", "Sator", "Quni"], HEIGHTS, color="C2")
+    ax.set_ylim(40, 100)
+
+
+def _rotated(angle):
+    def draw(fig):
+        ax = fig.add_subplot()
+        ax.bar(["Kalo", "Mireb", "Sator"], [3, 5, 4])
+        for label in ax.get_xticklabels():
+            label.set_rotation(angle)
+    return draw
+
+
+def _figure(draw, source, chart_type):
+    case = Case("known", chart_type, draw, {})
+    return vector_figure(case) if source == "vector" else raster_figure(case)
+
+
+@pytest.mark.parametrize("source, tolerance", [("vector", 0.005), ("raster", 0.01)])
+def test_pie_shares_match_the_drawn_data(source, tolerance):
+    pie = Measurements(_figure(_pie, source, "pie")).get("pie")
+    assert len(pie.slices) == 5
+    # counter-clockwise from 3 o'clock, as matplotlib draws them: the same order as the data
+    start = int(np.argmax(pie.shares))
+    ordered = pie.shares[start:] + pie.shares[:start]
+    assert np.allclose(ordered, SHARES, atol=tolerance)
+
+
+@pytest.mark.parametrize("source", ["vector", pytest.param("raster", marks=needs_ocr)])
+def test_value_axis_range_is_extrapolated_from_tick_labels(source):
+    measurements = Measurements(_figure(_bars, source, "bar"))
+    low, high = measurements.get("axes").y.value_range
+    assert low == pytest.approx(40, abs=0.5) and high == pytest.approx(100, abs=0.5)
+    chart = measurements.get("bars")
+    assert chart.orientation == "vertical" and len(chart.stacks) == 4
+    axis = measurements.get("axes").y
+    tops = [axis.value_at(stack.end) for stack in chart.stacks]
+    assert np.allclose(tops, HEIGHTS, atol=0.6)
+
+
+@pytest.mark.parametrize("source, tolerance", [("vector", 0.01), ("raster", 8.0)])
+@pytest.mark.parametrize("angle", [0, 45, 90])
+def test_label_angle(source, tolerance, angle):
+    measured = Measurements(_figure(_rotated(angle), source, "bar")).get("tick_label_angle")
+    assert measured.angle == pytest.approx(angle, abs=tolerance)
+
+
+def test_number_parsing():
+    # matplotlib writes negative ticks with U+2212 MINUS SIGN (Unicode standard)
+    assert parse_number("\u221220") == -20
+    assert parse_number("1,000") == 1000
+    assert parse_number("2.5k") == 2500
+    assert parse_number("Kalo") is None
+    assert parse_percentage("Alpha 12.5%") == 12.5
+
+
+def test_natural_order():
+    assert natural_order(["Jan", "Feb", "Mar"]) == "ordinal"
+    assert natural_order(["Q1", "Q2", "Q3"]) == "ordinal"
+    assert natural_order(["Apple", "Kiwi", "Pear"]) == "alphabetical"
+    assert natural_order(["Kiwi", "Apple", "Pear"]) is None
