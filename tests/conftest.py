@@ -10,6 +10,11 @@ import pymupdf
 import pytest
 from PIL import Image
 
+from corpusaudit.checks.registry import all_rules
+from corpusaudit.checks.runner import check_figure
+from corpusaudit.config import build_config
+from corpusaudit.measure import Measurements
+
 
 def png_bytes(width: int, height: int, seed: int = 0) -> bytes:
     rng = np.random.default_rng(seed)
@@ -38,3 +43,16 @@ def make_pdf(tmp_path):
     def build(name: str, ppis: list[int], caption: bool = True) -> Path:
         return pdf_with_rasters(tmp_path / name, ppis, caption)
     return build
+
+
+def only(rule: str, data: dict | None = None):
+    """The default configuration (overridden by data) with every other rule switched off: fast."""
+    data = data or {}
+    tables = {other.id: {"enabled": False} for other in all_rules() if other.id != rule}
+    return build_config({**data, "rules": {**tables, **data.get("rules", {})}})
+
+
+def run_rule(figure, rule: str, data: dict | None = None):
+    """The rule's results on the figure, and whether it was unmeasured."""
+    results, unmeasured = check_figure(figure, only(rule, data), Measurements(figure), strict=True)
+    return [r for r in results if r.rule == rule], rule in unmeasured

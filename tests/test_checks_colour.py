@@ -15,10 +15,7 @@ import numpy as np
 import pytest
 
 from benchmarks.colour_cases import ColourCase, raster_figure, vector_figure
-from corpusaudit.checks.registry import all_rules
-from corpusaudit.checks.runner import check_figure
-from corpusaudit.config import build_config
-from corpusaudit.measure import Measurements
+from tests.conftest import run_rule as run
 
 MPL_VERSION = matplotlib.__version__  # decisions below were checked with matplotlib 3.11.2
 RAINBOW_MAPS = ("jet", "hsv", "rainbow")
@@ -27,16 +24,6 @@ TAB10_ORANGE, TAB10_GREEN = "#ff7f0e", "#2ca02c"  # matplotlib's tab10 C1 and C2
 OKABE_ITO = ("#E69F00", "#56B4E9", "#009E73", "#F0E442", "#0072B2", "#D55E00", "#CC79A7")  # Okabe & Ito 2008
 
 
-def only(rule: str, data: dict | None = None):
-    """The default configuration (overridden by data) with every other rule switched off: fast."""
-    data = data or {}
-    tables = {other.id: {"enabled": False} for other in all_rules() if other.id != rule}
-    return build_config({**data, "rules": {**tables, **data.get("rules", {})}})
-
-
-def run(figure, rule: str, data: dict | None = None):
-    results, unmeasured = check_figure(figure, only(rule, data), Measurements(figure), strict=True)
-    return [r for r in results if r.rule == rule], rule in unmeasured
 
 
 def heatmap_case(cmap: str, colour_bar: bool = True, chart_type: str = "heatmap") -> ColourCase:

@@ -12,25 +12,12 @@ import pymupdf
 import pytest
 
 from benchmarks.colour_cases import ColourCase, jpeg_roundtrip, photo_pixels, raster_figure, render, vector_figure
-from corpusaudit.checks.registry import all_rules
-from corpusaudit.checks.runner import check_figure
-from corpusaudit.config import build_config
 from corpusaudit.extract import ExtractConfig, extract_document
-from corpusaudit.measure import Measurements
 from corpusaudit.model import Document, Figure
 from tests.conftest import pdf_with_rasters
+from tests.conftest import run_rule as run
 
 
-def only(rule: str, data: dict | None = None):
-    """The default configuration (overridden by data) with every other rule switched off: fast."""
-    data = data or {}
-    tables = {other.id: {"enabled": False} for other in all_rules() if other.id != rule}
-    return build_config({**data, "rules": {**tables, **data.get("rules", {})}})
-
-
-def run(figure, rule: str, data: dict | None = None):
-    results, unmeasured = check_figure(figure, only(rule, data), Measurements(figure), strict=True)
-    return [(r.severity, r.draft.value, r.draft.threshold) for r in results if r.rule == rule], rule in unmeasured
 
 
 def chart_case() -> ColourCase:

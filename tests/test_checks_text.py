@@ -11,25 +11,12 @@ from __future__ import annotations
 import pytest
 
 from benchmarks.colour_cases import ColourCase, raster_figure, vector_figure
-from corpusaudit.checks.registry import all_rules
-from corpusaudit.checks.runner import check_figure
-from corpusaudit.config import build_config
-from corpusaudit.measure import Measurements
 from corpusaudit.measure.text import ocr_available
+from tests.conftest import run_rule as run
 
 needs_ocr = pytest.mark.skipif(not ocr_available(), reason="tesseract is not installed")
 
 
-def only(rule: str, data: dict | None = None):
-    """The default configuration (overridden by data) with every other rule switched off: fast."""
-    data = data or {}
-    tables = {other.id: {"enabled": False} for other in all_rules() if other.id != rule}
-    return build_config({**data, "rules": {**tables, **data.get("rules", {})}})
-
-
-def run(figure, rule: str, data: dict | None = None):
-    results, unmeasured = check_figure(figure, only(rule, data), Measurements(figure), strict=True)
-    return [r for r in results if r.rule == rule], rule in unmeasured
 
 
 def labelled_case(text_colour: str = "#000000", size: float = 10.0, bold: bool = False,

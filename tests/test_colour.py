@@ -133,7 +133,7 @@ def test_lab_to_lch_hue_in_degrees():
 
 
 def wcag_luminance_by_hand(code: str) -> float:
-    """Independent transcription of the WCAG 2.x relative luminance definition."""
+    """Independent restatement of the WCAG 2.x relative luminance definition."""
     channels = []
     for value in hex_rgb(code):
         c = value / 255.0

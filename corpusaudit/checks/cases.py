@@ -361,23 +361,9 @@ def _draw(case: Case, backend_format: str, dpi: int) -> bytes:
 
 def vector_figure(case: Case, dpi: int = RENDER_DPI):
     """The case as a vector figure: PDF placed on a page, read back as PyMuPDF would extract it."""
-    import pymupdf
+    from corpusaudit.extract.vector_evidence import figure_from_chart_pdf
 
-    from corpusaudit.extract.vector_evidence import vector_evidence
-    from corpusaudit.model import Figure
-
-    source = pymupdf.open("pdf", _draw(case, "pdf", 72))
-    page_doc = pymupdf.open()
-    page = page_doc.new_page(width=612, height=792)
-    rect = pymupdf.Rect(36, 60, 36 + source[0].rect.width, 60 + source[0].rect.height)
-    page.show_pdf_page(rect, source, 0)
-    scale = dpi / 72.0
-    evidence = vector_evidence(page, rect, scale)
-    pix = page.get_pixmap(dpi=dpi, clip=rect, alpha=False)
-    pixels = np.frombuffer(pix.samples, np.uint8).reshape(pix.height, pix.width, pix.n)[:, :, :3].copy()
-    return Figure(figure_id=case.name + "-v", document_id="bench", path=case.name + ".pdf", page=1, index=0,
-                  bbox=(rect.x0, rect.y0, rect.x1, rect.y1), source="vector", width_px=pixels.shape[1],
-                  height_px=pixels.shape[0], pixels=pixels, vector=evidence, chart_type=case.chart_type)
+    return figure_from_chart_pdf(_draw(case, "pdf", 72), case.name + "-v", case.chart_type, dpi)
 
 
 def raster_figure(case: Case, rng: np.random.Generator | None = None, dpi: int = RENDER_DPI):

@@ -174,3 +174,21 @@ def vector_evidence(page: pymupdf.Page, clip: pymupdf.Rect, scale: float,
     matrix = figure_matrix(page, clip, scale)
     return VectorEvidence(texts=text_spans(page, clip, scale, text),
                           paths=path_items(inside, matrix, scale), scale=scale)
+
+
+def figure_from_chart_pdf(pdf: bytes, figure_id: str, chart_type: str = "", dpi: int = 150):
+    """A vector Figure from a one-page chart PDF placed on a letter page, read back as extraction would.
+
+    For fixtures and benchmarks whose truth is the chart itself (no page layout to find)."""
+    from corpusaudit.model import Figure
+
+    source = pymupdf.open("pdf", pdf)
+    page = pymupdf.open().new_page(width=612, height=792)
+    rect = pymupdf.Rect(36, 60, 36 + source[0].rect.width, 60 + source[0].rect.height)
+    page.show_pdf_page(rect, source, 0)
+    evidence = vector_evidence(page, rect, dpi / 72.0)
+    pix = page.get_pixmap(dpi=dpi, clip=rect, alpha=False)
+    pixels = np.frombuffer(pix.samples, np.uint8).reshape(pix.height, pix.width, pix.n)[:, :, :3].copy()
+    return Figure(figure_id=figure_id, document_id="fixture", path=f"{figure_id}.pdf", page=1, index=0,
+                  bbox=(rect.x0, rect.y0, rect.x1, rect.y1), source="vector", width_px=pixels.shape[1],
+                  height_px=pixels.shape[0], pixels=pixels, vector=evidence, chart_type=chart_type)

@@ -15,7 +15,7 @@ import numpy as np
 from corpusaudit.measure import measurement
 from corpusaudit.measure.legend import in_any
 from corpusaudit.measure.shapes import (
-    axis_aligned_segment, bbox_area, colour_distance, component_stats, intersect, is_vector, require_pixels,
+    axis_aligned_segment, bbox_area, colour_distance, intersect, is_vector, require_pixels,
 )
 from corpusaudit.model import BBox, Figure, MeasurementUnavailable
 
