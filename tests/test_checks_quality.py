@@ -14,10 +14,13 @@ import pytest
 from benchmarks.colour_cases import ColourCase, jpeg_roundtrip, photo_pixels, raster_figure, render, vector_figure
 from corpusaudit.extract import ExtractConfig, extract_document
 from corpusaudit.model import Document, Figure
-from tests.conftest import pdf_with_rasters
-from tests.conftest import run_rule as run
+from tests.conftest import pdf_with_rasters, run_rule
 
 
+def run(figure, rule: str, data: dict | None = None):
+    """(severity, value, threshold) of the rule's findings, and whether it was unmeasured."""
+    results, unmeasured = run_rule(figure, rule, data)
+    return [(r.severity, r.draft.value, r.draft.threshold) for r in results], unmeasured
 
 
 def chart_case() -> ColourCase:
