@@ -62,6 +62,7 @@ class _Worker:
         self.task: Any = None
         self.deadline = 0.0
         self.peak_rss = 0
+        self.served = 0
 
     def assign(self, task: Any, time_limit: float) -> None:
         self.task, self.deadline = task, time.monotonic() + time_limit
@@ -83,8 +84,12 @@ class _Worker:
 
 
 def run_pool(function: Callable[[Any], Any], tasks: Iterable[Any], jobs: int, time_limit: float,
-             memory_limit: int, on_peak: Callable[[int], None] | None = None) -> Iterator[tuple[Any, Any]]:
-    """Run function(task) in `jobs` processes; yield (task, result | Failure) as each finishes."""
+             memory_limit: int, on_peak: Callable[[int], None] | None = None,
+             recycle_after: int = 25) -> Iterator[tuple[Any, Any]]:
+    """Run function(task) in `jobs` processes; yield (task, result | Failure) as each finishes.
+
+    A worker is replaced after recycle_after tasks, so that what native libraries keep
+    between documents cannot make memory grow over a long batch."""
     # fork is cheap (the parent has imported everything) and the parent holds no open
     # documents or threads of its own while workers run; spawn where fork does not exist.
     context = mp.get_context("fork" if "fork" in mp.get_all_start_methods() else "spawn")
@@ -125,6 +130,10 @@ def run_pool(function: Callable[[Any], Any], tasks: Iterable[Any], jobs: int, ti
                         worker.kill()
                 if outcome is None:
                     continue
+                worker.served += 1
+                if not replace and worker.served >= recycle_after:
+                    worker.stop()
+                    replace = True
                 if replace:
                     if on_peak:
                         on_peak(worker.peak_rss)

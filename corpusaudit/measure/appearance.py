@@ -325,7 +325,7 @@ def plausible_word(text: str) -> bool:
     return _alphanumeric(core) >= 3 or (len(digits) >= 2 and digits.isdigit())
 
 
-OCR_MAX_PIXELS = 2_500_000
+OCR_MAX_PIXELS = 1_200_000  # ~0.5 s of tesseract; larger costs more than it finds
 
 
 def _ocr_upscale(per_point: float | None) -> float:

@@ -9,6 +9,7 @@ MeasurementUnavailable so the rules that need text are listed as unmeasured.
 from __future__ import annotations
 
 import functools
+import os
 import re
 import shutil
 
@@ -64,6 +65,9 @@ def ocr_words(rgb: np.ndarray, region: BBox, *, psm: int = 11, whitelist: str = 
         raise MeasurementUnavailable(OCR_UNAVAILABLE)
     import cv2
     import pytesseract
+
+    # One thread per tesseract run: parallelism comes from the document workers (--jobs).
+    os.environ.setdefault("OMP_THREAD_LIMIT", "1")
 
     h, w = rgb.shape[:2]
     x0, y0 = max(0, int(region[0])), max(0, int(region[1]))
