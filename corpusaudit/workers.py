@@ -8,6 +8,7 @@ in completion order as (task, result) pairs or (task, Failure).
 
 from __future__ import annotations
 
+import faulthandler
 import multiprocessing as mp
 import os
 import resource
@@ -36,6 +37,9 @@ def resident_bytes(pid: int) -> int:
 
 
 def _serve(function: Callable[[Any], Any], connection: Connection) -> None:
+    # A native crash is reported by the parent as this document's error; a traceback dump
+    # inherited from the parent (pytest enables one) would only clutter the log.
+    faulthandler.disable()
     while True:
         try:
             task = connection.recv()
