@@ -28,7 +28,7 @@ from corpusaudit.model import SEVERITY_RANK, Document, Figure, Finding
 from corpusaudit.progress import Progress
 from corpusaudit.report.annotate import annotate_pdf, annotated_path, render_page_thumbnails
 from corpusaudit.report.html import write_report
-from corpusaudit.report.tables import write_tables
+from corpusaudit.report.tables import write_json, write_tables
 from corpusaudit.rows import document_row, figure_row, finding_row
 from corpusaudit.store import cached_document, load_rows, open_store, rename_document, save_document
 from corpusaudit.workers import Failure, run_pool
@@ -215,6 +215,7 @@ def audit(inputs: list[str], out_dir: Path, config: Config, options: RunOptions 
         conn.close()
         clear_scratch(scratch)
     write_tables(out_dir, doc_rows, figure_rows, finding_rows, manifest_columns)
+    write_json(out_dir, doc_rows, figure_rows, finding_rows, manifest_columns)
     write_report(out_dir, doc_rows, figure_rows, finding_rows, manifest_columns)
     for row in doc_rows:
         summary.statuses[row["status"]] = summary.statuses.get(row["status"], 0) + 1

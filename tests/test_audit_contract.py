@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import csv
+import json
 import sqlite3
 
 import pytest
@@ -62,6 +63,11 @@ def test_audit_writes_every_contract_file(corpus, tmp_path):
     assert resolution == [("info", "200"), ("warning", "72")]
     for row in findings:
         assert row["severity"] in {"error", "warning", "info"}
+
+    data = json.loads((out / "audit.json").read_text(encoding="utf-8"))
+    assert data["schema_version"] == 1
+    assert [list(row) for row in data["documents"][:1]] == [list(DOCUMENT_COLUMNS)]
+    assert len(data["figures"]) == len(figures) and len(data["findings"]) == len(findings)
 
     with sqlite3.connect(out / "audit.sqlite") as conn:
         assert conn.execute("SELECT version FROM schema_version").fetchone()[0] >= 1

@@ -1,9 +1,10 @@
-"""documents.csv, figures.csv, findings.csv exactly as in the output contract."""
+"""documents.csv, figures.csv, findings.csv exactly as in the output contract, and audit.json."""
 
 from __future__ import annotations
 
 import csv
 import io
+import json
 from pathlib import Path
 
 from corpusaudit.report import write_atomic
@@ -25,3 +26,19 @@ def write_tables(out_dir: Path, documents: list[dict], figures: list[dict], find
     write_atomic(out_dir / "documents.csv", _csv_text(list(DOCUMENT_COLUMNS) + manifest_columns, document_rows))
     write_atomic(out_dir / "figures.csv", _csv_text(list(FIGURE_COLUMNS), figures))
     write_atomic(out_dir / "findings.csv", _csv_text(list(FINDING_COLUMNS), findings))
+
+
+JSON_SCHEMA_VERSION = 1
+
+
+def write_json(out_dir: Path, documents: list[dict], figures: list[dict], findings: list[dict],
+               manifest_columns: list[str]) -> None:
+    """audit.json: the three tables in one file for scripts, with a schema version."""
+    payload = {
+        "schema_version": JSON_SCHEMA_VERSION,
+        "documents": [{**{c: doc[c] for c in DOCUMENT_COLUMNS},
+                       **{c: doc["manifest"].get(c, "") for c in manifest_columns}} for doc in documents],
+        "figures": [{c: row[c] for c in FIGURE_COLUMNS} for row in figures],
+        "findings": [{c: row[c] for c in FINDING_COLUMNS} for row in findings],
+    }
+    write_atomic(out_dir / "audit.json", json.dumps(payload, ensure_ascii=False, indent=1))
