@@ -24,7 +24,7 @@ from corpusaudit.config import Config
 from corpusaudit.discover import clear_scratch, discover
 from corpusaudit.extract import ExtractError, extract_document
 from corpusaudit.measure import Measurements
-from corpusaudit.model import SEVERITY_RANK, Document, Figure, Finding
+from corpusaudit.model import SEVERITY_RANK, Document, Figure, Finding, MeasurementUnavailable
 from corpusaudit.progress import Progress
 from corpusaudit.report.annotate import annotate_pdf, annotated_path, render_page_thumbnails
 from corpusaudit.report.html import write_report
@@ -84,13 +84,26 @@ def _png(pixels: np.ndarray, max_side: int) -> bytes:
     return buffer.getvalue()
 
 
-def _classify(figure: Figure, classifier: Classifier | None, config: Config) -> None:
+def _classify(figure: Figure, classifier: Classifier | None, config: Config, measurements: Measurements) -> None:
     if classifier is None or figure.pixels is None:
         return  # no model shipped: the label stays empty rather than guessed
     prediction = classifier.predict(figure.pixels)
     figure.chart_type, figure.confidence = prediction.label, prediction.confidence
     figure.low_confidence = prediction.confidence < config.classify.low_confidence
     figure.classified_by = "model"
+    if figure.vector is not None and figure.chart_type != "pie" and _vector_pie(figure, measurements):
+        # Filled wedges whose arcs close one circle are a pie whatever the pixels suggest.
+        figure.chart_type, figure.confidence, figure.low_confidence = "pie", 1.0, False
+        figure.classified_by = "vector"
+
+
+def _vector_pie(figure: Figure, measurements: Measurements) -> bool:
+    try:
+        pie = measurements.get("pie")
+    except MeasurementUnavailable:
+        return False
+    # The circle must fill the figure: wedges inside a larger drawing (a panel of it) do not decide.
+    return len(pie.slices) >= 2 and (2 * pie.radius) ** 2 >= 0.25 * figure.width_px * figure.height_px
 
 
 _WORKER_CLASSIFIER: dict[str, Classifier | None] = {}
@@ -132,8 +145,9 @@ def _process(doc: Document, config: Config, strict: bool, pages: tuple[int, int]
     classifier = _classifier()
     result = DocumentResult(doc, [], [], decorations=extracted.decorations)
     for figure in extracted.figures:
-        _classify(figure, classifier, config)
-        results, figure.unmeasured = check_figure(figure, config, Measurements(figure), strict=strict)
+        measurements = Measurements(figure)
+        _classify(figure, classifier, config, measurements)
+        results, figure.unmeasured = check_figure(figure, config, measurements, strict=strict)
         if figure.pixels is not None:
             result.files[f"assets/{figure.figure_id}.png"] = _png(figure.pixels, THUMBNAIL_PX)
             result.files[f"assets/{figure.figure_id}.full.png"] = _png(figure.pixels, DETAIL_PX)

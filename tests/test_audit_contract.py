@@ -113,3 +113,39 @@ def test_hostile_file_name_is_escaped_in_html(tmp_path):
     html = (out / "report.html").read_text(encoding="utf-8")
     assert "<img src=x" not in html
     assert "&lt;img src=x onerror=alert(1)&gt;" in html or "\\u003cimg src=x" in html
+
+
+def test_vector_wedges_decide_pie_whatever_the_pixels_suggest():
+    """A matplotlib pie read as vector evidence is labelled pie by its geometry (classified_by vector)."""
+    import io
+
+    import matplotlib
+    matplotlib.use("Agg")
+    from matplotlib.figure import Figure as PlotFigure
+
+    from corpusaudit.classify import Prediction
+    from corpusaudit.config import build_config
+    from corpusaudit.extract.vector_evidence import figure_from_chart_pdf
+    from corpusaudit.measure import Measurements
+    from corpusaudit.run import _classify
+
+    plot = PlotFigure(figsize=(4, 3))
+    plot.subplots().pie([40, 30, 20, 10])
+    buffer = io.BytesIO()
+    plot.savefig(buffer, format="pdf")
+    figure = figure_from_chart_pdf(buffer.getvalue(), "pie-1")
+
+    class WrongModel:
+        def predict(self, rgb):
+            return Prediction("scatter", 0.4, (("scatter", 0.4), ("pie", 0.3), ("map", 0.1)))
+
+    _classify(figure, WrongModel(), build_config({}), Measurements(figure))
+    assert (figure.chart_type, figure.classified_by, figure.low_confidence) == ("pie", "vector", False)
+
+    bars = PlotFigure(figsize=(4, 3))
+    bars.subplots().bar(["a", "b"], [3, 4])
+    buffer = io.BytesIO()
+    bars.savefig(buffer, format="pdf")
+    figure = figure_from_chart_pdf(buffer.getvalue(), "bar-1")
+    _classify(figure, WrongModel(), build_config({}), Measurements(figure))
+    assert (figure.chart_type, figure.classified_by) == ("scatter", "model")

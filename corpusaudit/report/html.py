@@ -46,7 +46,7 @@ DOCUMENT_FIELDS = ("document_id", "path", "status", "error", "pages", "figures",
                    "page_info", "annotated")
 FIGURE_FIELDS = ("figure_id", "document", "page", "index", "x0", "y0", "x1", "y1", "source", "chart_type",
                  "confidence", "width_px", "height_px", "effective_ppi", "caption", "thumbnail", "unmeasured",
-                 "low_confidence", "figure_number")
+                 "low_confidence", "figure_number", "classified_by")
 FINDING_FIELDS = ("figure", "rule", "severity", "message", "value", "threshold", "fx0", "fy0", "fx1", "fy1")
 
 
@@ -134,7 +134,7 @@ def build_payload(out_dir: Path, documents: list[dict], figures: list[dict], fin
         f["chart_type"] or "", _number(f["confidence"]), int(f["width_px"] or 0), int(f["height_px"] or 0),
         _number(f["effective_ppi"]), f["caption"] or "", f["thumbnail"] or "",
         [rule_index[r] for r in (f.get("unmeasured") or "").split(";") if r],
-        int(f.get("low_confidence") or 0), f.get("figure_number") or "",
+        int(f.get("low_confidence") or 0), f.get("figure_number") or "", f.get("classified_by") or "",
     ] for f in figures]
     finding_rows = [[
         figure_index.get(f["figure_id"], -1), rule_index[f["rule"]], SEVERITIES.index(f["severity"]),

@@ -38,7 +38,8 @@ def write_json(out_dir: Path, documents: list[dict], figures: list[dict], findin
         "schema_version": JSON_SCHEMA_VERSION,
         "documents": [{**{c: doc[c] for c in DOCUMENT_COLUMNS},
                        **{c: doc["manifest"].get(c, "") for c in manifest_columns}} for doc in documents],
-        "figures": [{c: row[c] for c in FIGURE_COLUMNS} for row in figures],
+        "figures": [{**{c: row[c] for c in FIGURE_COLUMNS}, "low_confidence": bool(row["low_confidence"]),
+                     "classified_by": row["classified_by"]} for row in figures],
         "findings": [{c: row[c] for c in FINDING_COLUMNS} for row in findings],
     }
     write_atomic(out_dir / "audit.json", json.dumps(payload, ensure_ascii=False, indent=1))

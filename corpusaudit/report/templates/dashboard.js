@@ -30,7 +30,8 @@
     box: [row[F.x0], row[F.y0], row[F.x1], row[F.y1]], source: row[F.source], type: row[F.chart_type],
     confidence: row[F.confidence], width: row[F.width_px], height: row[F.height_px], ppi: row[F.effective_ppi],
     caption: row[F.caption], thumb: row[F.thumbnail], unmeasured: row[F.unmeasured].map((r) => rules[r].id),
-    low: !!row[F.low_confidence], number: row[F.figure_number], findings: [], worst: 0, search: "",
+    low: !!row[F.low_confidence], number: row[F.figure_number], decidedBy: row[F.classified_by],
+    findings: [], worst: 0, search: "",
   }));
   const figures = figureRows.filter((f) => f.doc);
   const figureById = new Map(figures.map((f) => [f.id, f]));
@@ -336,6 +337,7 @@
       ["Document", el("a", { href: hashFor("document", f.doc.id) }, f.doc.path)],
       ["Page", String(f.page)],
       ["Chart type", [typeText(f), f.confidence === null ? "" : ` (confidence ${confidenceText(f)})`,
+        f.decidedBy === "vector" ? " — decided by the PDF's drawn wedges" : "",
         f.low ? el("span", { class: "low" }, " \u25b2 low confidence: rules for specific chart types were not applied") : null]],
       ["Source", f.source],
       ["Size", f.width ? `${number(f.width)} \u00d7 ${number(f.height)} px` : "\u2014"],
