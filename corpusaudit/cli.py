@@ -176,6 +176,14 @@ def _train(args: argparse.Namespace) -> int:
 
 
 def main(argv: list[str] | None = None) -> int:
+    try:
+        return _main(argv)
+    except BrokenPipeError:  # `corpusaudit rules | head`: the reader left; not an error
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return EXIT_OK
+
+
+def _main(argv: list[str] | None) -> int:
     args = _parser().parse_args(argv)
     logging.basicConfig(level=logging.WARNING, format="corpusaudit: %(levelname)s: %(message)s")
     if args.command == "rules":
