@@ -47,12 +47,14 @@ def _marker_centres(figure: Figure, plot: BBox, frames: list[BBox]) -> list[tupl
 
 def _vector_series(figure: Figure, plot: BBox, frames: list[BBox]) -> list[Series]:
     width = plot[2] - plot[0]
+    marker_size = 0.05 * max(width, plot[3] - plot[1])  # as _marker_centres
     groups: dict[tuple, list] = {}
     for path in figure.vector.paths:
         if "s" not in path.kind or path.stroke is None or path.is_rect or len(path.points) < 2:
             continue
-        if path.closed and len(path.points) <= 8:
-            continue  # markers and frames, not lines
+        if path.closed and (len(path.points) <= 8 or max(path.bbox[2] - path.bbox[0],
+                                                          path.bbox[3] - path.bbox[1]) <= marker_size):
+            continue  # markers (polygons, or circles drawn as Bezier curves) and frames, not lines
         if axis_aligned_segment(path) and (is_neutral(path.stroke) or len(path.points) == 2):
             continue  # grid, spines, ticks, error bars, reference lines
         if intersect(path.bbox, plot) is None or in_any(path.bbox, frames):
