@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import csv
 import dataclasses
+import functools
 import io
 import logging
 import os
@@ -106,13 +107,10 @@ def _vector_pie(figure: Figure, measurements: Measurements) -> bool:
     return len(pie.slices) >= 2 and (2 * pie.radius) ** 2 >= 0.25 * figure.width_px * figure.height_px
 
 
-_WORKER_CLASSIFIER: dict[str, Classifier | None] = {}
-
-
+@functools.cache
 def _classifier() -> Classifier | None:
-    if "model" not in _WORKER_CLASSIFIER:
-        _WORKER_CLASSIFIER["model"] = load_classifier()
-    return _WORKER_CLASSIFIER["model"]
+    """The shipped model, loaded once per worker process."""
+    return load_classifier()
 
 
 def process_document(doc: Document, config: Config, strict: bool = False,

@@ -56,3 +56,17 @@ def run_rule(figure, rule: str, data: dict | None = None):
     """The rule's results on the figure, and whether it was unmeasured."""
     results, unmeasured = check_figure(figure, only(rule, data), Measurements(figure), strict=True)
     return [r for r in results if r.rule == rule], rule in unmeasured
+
+
+def write_page_thumbnails(source, out_dir: Path, document_id: str, pages=None) -> list[Path]:
+    """What run.py does with render_page_thumbnails: write its files under out_dir; the PNG paths."""
+    from corpusaudit.report.annotate import render_page_thumbnails
+
+    written = []
+    for relative, data in render_page_thumbnails(source, document_id, pages).items():
+        path = out_dir / relative
+        path.parent.mkdir(parents=True, exist_ok=True)
+        path.write_bytes(data)
+        if path.suffix == ".png":
+            written.append(path)
+    return written

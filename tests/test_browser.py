@@ -18,7 +18,7 @@ import pytest
 
 import pymupdf
 
-from corpusaudit.report.annotate import write_page_thumbnails
+from tests.conftest import write_page_thumbnails
 from corpusaudit.report.html import write_report
 from corpusaudit.report.tables import write_tables
 
@@ -92,6 +92,7 @@ def test_loads_without_errors_and_shows_every_figure(page, audit_dir):
     with open(out_dir / "figures.csv", encoding="utf-8") as handle:
         expected = sum(1 for _ in handle) - 1
     page.click(".tabs a[data-view=figures]")
+    page.wait_for_selector("#view-figures #cards .card")  # the view renders after the click's handler
     assert page.locator("#cards .card").count() == expected
     assert page.text_content("#figure-count").startswith(f"Showing 1\u2013{expected} of {expected} figures")
     # Thumbnails load from assets/ under the page's Content-Security-Policy.

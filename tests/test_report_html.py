@@ -25,7 +25,8 @@ from corpusaudit.config import load_config
 from corpusaudit.extract.vector_evidence import vector_evidence
 from corpusaudit.measure import Measurements
 from corpusaudit.model import Figure
-from corpusaudit.report.annotate import annotate_pdf, write_page_thumbnails
+from corpusaudit.report.annotate import annotate_pdf
+from tests.conftest import write_page_thumbnails
 from corpusaudit.report.html import ADVISORY, json_for_script, overview_charts, render_report, write_report
 from corpusaudit.report.letters import letter_markdown
 from corpusaudit.report.svg import Bar, bar_chart, nice_ticks

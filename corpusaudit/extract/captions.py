@@ -28,12 +28,6 @@ class TextLine:
 
 
 @dataclass(frozen=True)
-class TextBlock:
-    bbox: BBox
-    text: str
-
-
-@dataclass(frozen=True)
 class Caption:
     text: str
     number: str
@@ -117,9 +111,3 @@ def assign_captions(figure_boxes: list[BBox], captions: list[Caption], gap: floa
             assigned[f] = captions[c]
             used.add(c)
     return assigned
-
-
-def find_caption(figure_box: BBox, blocks: list[TextBlock], pattern: re.Pattern, gap: float) -> Caption | None:
-    """The nearest caption block for one figure, or None (blocks as whole text blocks)."""
-    lines = [TextLine(b.bbox, b.text, i, True, 0.0) for i, b in enumerate(blocks)]
-    return assign_captions([figure_box], caption_candidates(lines, pattern), gap)[0]

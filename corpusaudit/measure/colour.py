@@ -204,11 +204,6 @@ def delta_e_ciede2000(
     return np.sqrt(term_l**2 + term_c**2 + term_h**2 + r_t * term_c * term_h)
 
 
-def delta_e_srgb(rgb1: np.ndarray | Sequence, rgb2: np.ndarray | Sequence) -> np.ndarray:
-    """CIEDE2000 between sRGB colours (convenience)."""
-    return delta_e_ciede2000(srgb_to_lab(rgb1), srgb_to_lab(rgb2))
-
-
 def _pairwise_de00(lab: np.ndarray) -> np.ndarray:
     return delta_e_ciede2000(lab[:, None, :], lab[None, :, :])
 

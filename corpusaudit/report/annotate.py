@@ -4,7 +4,7 @@ annotate_pdf writes a copy of a PDF with, on every figure that has findings, a r
 annotation around it and a note annotation listing the findings and their fixes. The
 original file is only read.
 
-write_page_thumbnails renders small page images for the dashboard's document view
+render_page_thumbnails renders small page images for the dashboard's document view
 (assets/pages/<document_id>-p<N>.png) and records every page's size in points
 (assets/pages/<document_id>.json) so that figure boxes can be drawn on them.
 """
@@ -131,16 +131,3 @@ def render_page_thumbnails(source_pdf_path: str | os.PathLike, document_id: str,
             files[page_thumbnail_path(Path(), document_id, number).as_posix()] = pixmap.tobytes("png")
     files[page_sizes_path(Path(), document_id).as_posix()] = json.dumps(sizes, sort_keys=True).encode()
     return files
-
-
-def write_page_thumbnails(source_pdf_path: str | os.PathLike, out_dir: Path, document_id: str,
-                          pages: Iterable[int] | None = None, max_side: int = PAGE_THUMBNAIL_PX) -> list[Path]:
-    """render_page_thumbnails, written under out_dir; returns the PNG paths."""
-    written = []
-    for relative, data in render_page_thumbnails(source_pdf_path, document_id, pages, max_side).items():
-        path = out_dir / relative
-        path.parent.mkdir(parents=True, exist_ok=True)
-        path.write_bytes(data)
-        if path.suffix == ".png":
-            written.append(path)
-    return written
