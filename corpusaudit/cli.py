@@ -79,6 +79,9 @@ def _print_rules() -> None:
             print(f"    {option.key} = {option.default}: {option.help} (source: {option.source})")
         print(f"    why: {rule.rationale}")
         print(f"    fix: {rule.fix}")
+        print(f"    problem: {rule.problem}")
+        print(f"    better: {rule.better}")
+        print(f"    limits: {rule.limitations}")
         print()
 
 

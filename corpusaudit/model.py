@@ -168,6 +168,9 @@ class Rule:
     rationale: str
     fix: str
     evaluate: Callable[..., Outcome]
+    problem: str = ""  # an example of a figure that fails the rule
+    better: str = ""  # the same figure done well
+    limitations: str = ""  # what the measurement cannot see
     requires: tuple[str, ...] = ()  # names of measurements it reads
     status: str = "stable"  # stable | preview
 

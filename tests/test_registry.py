@@ -29,6 +29,9 @@ def test_every_contract_rule_is_declared_once_with_its_metadata():
         assert rule.severity in SEVERITIES
         assert rule.applies_to == ("*",) or set(rule.applies_to) <= set(CHART_TYPES)
         assert len(rule.rationale) > 40 and len(rule.fix) > 20, rule.id
+        # style.md: every rule documents a failing example, a better one and its limits.
+        assert len(rule.problem) > 30 and len(rule.better) > 30 and len(rule.limitations) > 30, rule.id
+        assert rule.problem != rule.better, rule.id
         for option in rule.options:
             assert option.help and option.source, (rule.id, option.key)
 
@@ -47,3 +50,4 @@ def test_rules_command_prints_the_registry(capsys):
         assert f"{rule.id}  [{rule.severity}]" in printed
         for option in rule.options:
             assert f"{option.key} = {option.default}" in printed
+        assert rule.problem in printed and rule.limitations in printed

@@ -31,6 +31,11 @@ def _value_axis(ctx: CheckContext):
         elsewhere, bar lengths exaggerate differences.""",
     fix="""Start the value axis at zero, or show the values as points or a line if only the
         differences matter.""",
+    problem="""A bar chart of annual landings whose value axis runs from 40 to 100: a bar of 60 looks a third
+        the height of a bar of 100.""",
+    better="""The same bars on an axis from 0 to 100, so bar lengths are proportional to the values.""",
+    limitations="""Needs the value axis's tick labels (text recognition on rasters); log axes and charts of
+        differences around a reference value are legitimate exceptions a reviewer must judge.""",
 )
 def bar_baseline(ctx: CheckContext) -> Outcome:
     axis, axes = _value_axis(ctx)
@@ -59,6 +64,10 @@ def bar_baseline(ctx: CheckContext) -> Outcome:
     rationale="""Rotated labels are read slowly and with head tilted; they usually mean the
         categories do not fit along the axis.""",
     fix="""Swap to horizontal bars so labels run horizontally, shorten or wrap the labels.""",
+    problem="""Twelve survey-site names under a bar chart, set at 45 degrees so that readers tilt their heads.""",
+    better="""Horizontal bars with the site names written horizontally beside them.""",
+    limitations="""Reads label angles from vector text exactly; on rasters the angle is estimated from text-line
+        orientation and small text may be missed.""",
 )
 def tick_label_rotation(ctx: CheckContext) -> Outcome:
     measured = ctx.measure("tick_label_angle")
@@ -78,6 +87,10 @@ def tick_label_rotation(ctx: CheckContext) -> Outcome:
     rationale="""Bars of unordered categories are easiest to compare sorted by value; categories
         with a natural order (time, ranks, alphabetical lists) keep that order.""",
     fix="""Sort the bars by value, unless the categories have an order of their own.""",
+    problem="""Eight harbours' bars in arbitrary order, so the largest and smallest must be hunted for.""",
+    better="""The same bars sorted from largest to smallest.""",
+    limitations="""Cannot know when categories have a natural order (months, age bands, ranked scales); treat the
+        finding as a question to the author.""",
 )
 def bar_order(ctx: CheckContext) -> Outcome:
     chart = ctx.measure("bars")
@@ -106,6 +119,11 @@ def bar_order(ctx: CheckContext) -> Outcome:
     rationale="""Only the bottom segment of a stack sits on a common baseline; the others float
         and cannot be compared across bars. The more segments, the less can be read.""",
     fix="""Use grouped bars, small multiples, or fewer categories per stack.""",
+    problem="""Stacked bars with six segments each: only the bottom segment shares a baseline and the others
+        cannot be compared.""",
+    better="""Grouped bars, or small multiples with one panel per segment.""",
+    limitations="""Counts distinct segment colours within a stack; a gradient fill or hatched segments may be
+        miscounted.""",
 )
 def bar_stack_depth(ctx: CheckContext) -> Outcome:
     chart = ctx.measure("bars")
@@ -127,6 +145,11 @@ def bar_stack_depth(ctx: CheckContext) -> Outcome:
     rationale="""Perspective distorts lengths and angles: nearer bars and slices look larger than
         their values, and bar tops cannot be read against the axis.""",
     fix="""Draw the chart flat (2D).""",
+    problem="""A pie tilted into perspective with a visible side wall, so the near slices look larger than
+        their share.""",
+    better="""The same chart drawn flat, without depth or shading.""",
+    limitations="""Recognises side walls and extrusion faces; a chart with genuine 3D data (a surface plot) is
+        outside its scope.""",
 )
 def chart_3d(ctx: CheckContext) -> Outcome:
     seen = ctx.measure("perspective")

@@ -17,6 +17,9 @@ from corpusaudit.model import Draft, Option, Outcome
     rationale="""Groups of unordered categories are easiest to compare sorted by their median;
         groups with a natural order keep it.""",
     fix="""Sort the boxes by median, unless the groups have an order of their own.""",
+    problem="""Box plots for nine invented monitoring stations in arbitrary order.""",
+    better="""The boxes sorted by median, or kept in an order the groups have of their own.""",
+    limitations="""Cannot know when groups have a natural order; the finding asks the author to consider sorting.""",
 )
 def box_order(ctx: CheckContext) -> Outcome:
     boxes = ctx.measure("boxes")

@@ -41,6 +41,11 @@ def lightness_profile(lightness: list[float], points: int = PROFILE_POINTS) -> l
     fix="""Use a perceptually uniform sequential map (viridis, cividis, a single-hue ramp) for
         magnitudes, or a diverging map (two hues through a light neutral) around a meaningful
         midpoint.""",
+    problem="""A heatmap of sea-surface temperature drawn with a jet-like rainbow map: yellow bands look like
+        edges that are not in the data.""",
+    better="""The same heatmap with viridis or a single-hue sequential ramp whose lightness rises steadily.""",
+    limitations="""Needs a continuous colour scale (colour bar, heatmap or map fill); categorical palettes are
+        judged by palette-cvd instead.""",
 )
 def colormap_rainbow(ctx: CheckContext) -> Outcome:
     scales = ctx.measure("colour_scales")
@@ -89,6 +94,10 @@ def colormap_rainbow(ctx: CheckContext) -> Outcome:
     fix="""Pick a colour-blind-safe palette (Okabe-Ito, viridis samples, ColorBrewer's safe sets),
         vary lightness as well as hue, or add direct labels, markers or patterns so colour is not
         the only cue.""",
+    problem="""A line chart whose two series are red and green: under deuteranopia both look olive.""",
+    better="""Series in blue and orange (or distinguished by dash style and direct labels as well as colour).""",
+    limitations="""Judges the chart's categorical colours; it cannot tell which colours carry meaning, so a
+        decorative pair may be flagged.""",
 )
 def palette_cvd(ctx: CheckContext) -> Outcome:
     palette = ctx.measure("palette")

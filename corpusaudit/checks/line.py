@@ -19,6 +19,9 @@ from corpusaudit.model import Draft, MeasurementUnavailable, Option, Outcome
     rationale="""Beyond a handful of lines, colours cannot be told apart and lines tangle
         ('spaghetti chart').""",
     fix="""Highlight the series that matter and grey the rest, or use small multiples.""",
+    problem="""A line chart with eleven coloured series tangled together.""",
+    better="""Two or three highlighted series with the others in grey, or small multiples.""",
+    limitations="""Series are separated by colour and dash style; series drawn in one colour are counted as one.""",
 )
 def line_series_count(ctx: CheckContext) -> Outcome:
     count = len(ctx.measure("line_series"))
@@ -43,6 +46,11 @@ def line_series_count(ctx: CheckContext) -> Outcome:
     rationale="""A line implies values between its points and a sequence; joining unordered
         categories (countries, products) invents both.""",
     fix="""Use bars or dots for categories; keep lines for ordered x values such as time.""",
+    problem="""Lines joining values for unordered categories such as harbour names, implying a trend between
+        them.""",
+    better="""Bars or dots for the categories.""",
+    limitations="""Relies on the x tick labels being words rather than numbers or dates; ordinal categories (low,
+        medium, high) may be legitimate.""",
 )
 def line_on_categories(ctx: CheckContext) -> Outcome:
     axis = ctx.measure("axes").x
@@ -63,6 +71,10 @@ def line_on_categories(ctx: CheckContext) -> Outcome:
     rationale="""When numeric x labels with uneven steps (2000, 2005, 2010, 2012) sit at equal
         distances, slopes between them are distorted.""",
     fix="""Use a numeric (or date) x axis so distances follow the values.""",
+    problem="""Samples from 1990, 2000, 2015 and 2020 placed at equal spacing, so the change per year is
+        distorted.""",
+    better="""A numeric year axis on which 1990-2000 is twice as long as 2015-2020.""",
+    limitations="""Needs numeric x tick labels; text recognition errors on rasters can hide the problem.""",
 )
 def line_uneven_axis(ctx: CheckContext) -> Outcome:
     axis = ctx.measure("axes").x
@@ -94,6 +106,11 @@ def line_uneven_axis(ctx: CheckContext) -> Outcome:
     rationale="""A line without markers suggests evenly or densely sampled data; when samples are
         unevenly spaced, the reader cannot see where the data are and where the line interpolates.""",
     fix="""Draw a marker at each sample.""",
+    problem="""A line through yearly samples with two years missing, drawn as one unbroken line without
+        markers.""",
+    better="""A marker at each sample (or a visible break in the line) so readers see where the data are.""",
+    limitations="""Needs the sample positions (vector vertices, or corners visible in pixels); smoothed curves
+        hide them and are left unmeasured.""",
 )
 def line_marker_gaps(ctx: CheckContext) -> Outcome:
     series = ctx.measure("line_series")
@@ -124,6 +141,10 @@ def line_marker_gaps(ctx: CheckContext) -> Outcome:
     rationale="""In a stacked area chart only the lowest band sits on a flat baseline; the others
         ride on the bands below and their changes cannot be read.""",
     fix="""Use lines or small multiples when the series should be compared.""",
+    problem="""Four stacked areas of catch by species: only the bottom layer can be read against the axis.""",
+    better="""Four lines on a shared axis, or small multiples.""",
+    limitations="""Detects stacking from the layered fills; a single area or a stacked area showing shares of a
+        total may be a fair choice.""",
 )
 def area_stacked(ctx: CheckContext) -> Outcome:
     layers = ctx.measure("areas")

@@ -16,6 +16,10 @@ from corpusaudit.model import Draft, Option, Outcome
     rationale="""Angles and areas are judged far less accurately than lengths; with many slices the
         small ones cannot be compared or even labelled.""",
     fix="""Keep the largest few slices and group the rest as 'other', or draw a sorted bar chart.""",
+    problem="""A pie with nine slices, several too thin to label.""",
+    better="""The four largest slices plus 'other', or a sorted bar chart of all nine values.""",
+    limitations="""Counts wedges from the vector geometry or from colour boundaries around the centre; thin
+        neighbouring slices of one colour are merged.""",
 )
 def pie_slice_count(ctx: CheckContext) -> Outcome:
     pie = ctx.measure("pie")
@@ -39,6 +43,9 @@ def pie_slice_count(ctx: CheckContext) -> Outcome:
     rationale="""Readers cannot tell which of two nearly equal slices is larger: the comparison the
         chart invites cannot be made.""",
     fix="""Show the values as a sorted bar chart, or print the values on the slices.""",
+    problem="""A pie with slices of 24% and 23%: readers cannot tell which is larger.""",
+    better="""A sorted bar chart, or the values printed on the slices.""",
+    limitations="""Shares come from the wedge angles; 3D pies distort them and are flagged by chart-3d.""",
 )
 def pie_similar_slices(ctx: CheckContext) -> Outcome:
     pie = ctx.measure("pie")
@@ -65,6 +72,9 @@ def pie_similar_slices(ctx: CheckContext) -> Outcome:
     rationale="""Slices placed in size order (largest first, going round) let readers rank them
         without comparing angles across the circle.""",
     fix="""Sort the slices by size, starting at 12 o'clock.""",
+    problem="""Slices of 10%, 40%, 15% and 35% in that order around the circle.""",
+    better="""The slices sorted by size, largest first, starting at 12 o'clock.""",
+    limitations="""An order the categories have of their own (age bands, a Likert scale) is legitimate.""",
 )
 def pie_order(ctx: CheckContext) -> Outcome:
     pie = ctx.measure("pie")
@@ -86,6 +96,9 @@ def pie_order(ctx: CheckContext) -> Outcome:
     rationale="""Percentages printed on a pie are parts of one whole: if they do not add up to 100
         the data, the rounding or the chart type is wrong.""",
     fix="""Check the figures; if categories overlap (several answers allowed) use a bar chart.""",
+    problem="""Slice labels of 45%, 30% and 35%, which add up to 110%.""",
+    better="""Labels that total 100% (or a bar chart when several answers were allowed).""",
+    limitations="""Needs percentage labels on or beside the slices; labels that state counts are not summed.""",
 )
 def pie_total(ctx: CheckContext) -> Outcome:
     pie = ctx.measure("pie")

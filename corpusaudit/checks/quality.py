@@ -24,6 +24,11 @@ from corpusaudit.model import Draft, Option, Outcome
         figures and image files (no print size) are not judged.""",
     fix="""Export the chart as vector graphics (PDF, SVG, EPS) or as a raster of at least
         300 ppi at its printed size.""",
+    problem="""A chart pasted as a 300-pixel-wide screenshot and printed 15 cm wide (about 50 ppi): text and
+        lines are blurred.""",
+    better="""The chart exported as vector graphics, or as a raster of at least 300 ppi at its printed size.""",
+    limitations="""Uses the image's pixels and its placed size on the page; a vector chart has no resolution limit
+        and is not judged.""",
 )
 def raster_resolution(ctx: CheckContext) -> Outcome:
     ppi = ctx.figure.effective_ppi
@@ -63,6 +68,9 @@ def raster_resolution(ctx: CheckContext) -> Outcome:
         available (else on the rendered pixels of a raster stored as JPEG).""",
     fix="""Export the chart as vector graphics, or as PNG (lossless) rather than JPEG; do not
         re-save a chart that has been through JPEG.""",
+    problem="""A bar chart saved as a JPEG: halos ring every label and edge.""",
+    better="""The same chart saved as PNG or drawn as vector graphics.""",
+    limitations="""Photographs and microscopy are not flagged; JPEG is right for them.""",
 )
 def raster_compression(ctx: CheckContext) -> Outcome:
     evidence = ctx.measure("compression")
@@ -92,6 +100,10 @@ def raster_compression(ctx: CheckContext) -> Outcome:
         extraction; image files are not judged.""",
     fix="""Add a numbered caption below (or above) the figure that states what is shown, the
         units and the data source.""",
+    problem="""A chart placed between paragraphs with no 'Figure N.' text near it.""",
+    better="""A numbered caption that says what is shown, the source of the data and the units.""",
+    limitations="""Finds captions by a configurable pattern near the figure; captions set far away (a list of
+        figures at the end) are missed.""",
 )
 def caption_missing(ctx: CheckContext) -> Outcome:
     if ctx.figure.caption.strip():

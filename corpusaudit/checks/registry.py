@@ -23,9 +23,13 @@ class CheckContext:
 
 
 def rule(*, id: str, applies_to: tuple[str, ...], severity: str, rationale: str, fix: str,
-         options: tuple[Option, ...] = (), sources: tuple[str, ...] = SOURCES,
+         problem: str, better: str, limitations: str, options: tuple[Option, ...] = (), sources: tuple[str, ...] = SOURCES,
          requires: tuple[str, ...] = (), status: str = "stable"):
-    """Declare a rule. The decorated function is its evaluate(ctx) -> Outcome."""
+    """Declare a rule. The decorated function is its evaluate(ctx) -> Outcome.
+
+    Every rule documents itself in fixed sections: rationale (why it matters), fix, problem (an
+    example that fails), better (the same figure done well) and limitations (what it cannot see).
+    """
     if severity not in SEVERITIES:
         raise ValueError(f"{id}: unknown severity {severity!r}")
     unknown = [t for t in applies_to if t != "*" and t not in CHART_TYPES]
@@ -37,7 +41,8 @@ def rule(*, id: str, applies_to: tuple[str, ...], severity: str, rationale: str,
             raise ValueError(f"rule id {id!r} declared twice")
         RULES[id] = Rule(id=id, applies_to=applies_to, sources=sources, severity=severity,
                          options=options, rationale=" ".join(rationale.split()), fix=" ".join(fix.split()),
-                         evaluate=evaluate, requires=requires, status=status)
+                         problem=" ".join(problem.split()), better=" ".join(better.split()),
+                         limitations=" ".join(limitations.split()), evaluate=evaluate, requires=requires, status=status)
         return evaluate
 
     return register

@@ -16,6 +16,10 @@ from corpusaudit.model import Draft, Option, Outcome
     rationale="""Where markers pile up, density and outliers disappear: the plot shows less data
         than it holds.""",
     fix="""Use smaller or translucent markers, jitter, a 2D histogram or a hexbin plot.""",
+    problem="""Four thousand opaque markers on top of one another: the dense region is a solid blob.""",
+    better="""Smaller translucent markers, or a 2D histogram or hexbin plot.""",
+    limitations="""Estimates overlap from marker area and spread; markers of very mixed sizes (bubble charts) are
+        judged less reliably.""",
 )
 def scatter_overplotting(ctx: CheckContext) -> Outcome:
     markers = ctx.measure("markers")
@@ -37,6 +41,9 @@ def scatter_overplotting(ctx: CheckContext) -> Outcome:
     rationale="""Markers on the axes are partly hidden by them, and clipped ones hint at data
         outside the visible range.""",
     fix="""Widen the axis limits slightly so every marker sits inside the plot.""",
+    problem="""Markers clipped by the plot frame because the axis limits were set too tight.""",
+    better="""Axis limits widened slightly so every marker sits inside the plot.""",
+    limitations="""Needs the plot frame; charts without axes or frame are skipped.""",
 )
 def scatter_edge_points(ctx: CheckContext) -> Outcome:
     markers = ctx.measure("markers")

@@ -38,6 +38,10 @@ def is_large_text(size_pt: float | None, bold: bool, large_pt: float, large_bold
         raster text is read by OCR and its ink estimated from the cores of its strokes.""",
     fix="""Darken the text (or lighten its background) until the ratio is at least 4.5:1; inside
         dark or saturated marks use white text; avoid grey-on-grey tick labels.""",
+    problem="""Light grey tick labels (#BBBBBB) on white: contrast ratio 1.9:1.""",
+    better="""Dark grey labels (#555555 or darker) on white: contrast ratio 7.5:1.""",
+    limitations="""Raster text is found by its strokes; text over photographs or gradients has no single
+        background, so the estimate is rough.""",
 )
 def text_contrast(ctx: CheckContext) -> Outcome:
     measured = ctx.measure("text_contrast")
@@ -88,6 +92,10 @@ def smallest_text(lines, per_size_minimum: int):
         have no print size and are not judged.""",
     fix="""Enlarge the labels (or draw the chart at its final size so the fonts are not scaled
         down), aiming at 7-9 pt for tick labels and more for titles.""",
+    problem="""Axis labels set at 4 pt at the printed size of the figure.""",
+    better="""Labels of at least 6 pt (8 pt or more is easier) at printed size.""",
+    limitations="""Raster text height is measured in pixels and converted with the placed size; OCR or stroke
+        detection may miss very small text.""",
 )
 def text_size(ctx: CheckContext) -> Outcome:
     if ctx.figure.source == "image":

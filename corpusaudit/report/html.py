@@ -346,6 +346,8 @@ def render_rules() -> str:
             f"</h3><p class='muted'>Applies to {_e(applies)}; sources: {_e(', '.join(rule.sources))}.</p>"
             f"<p><strong>Why it matters.</strong> {_e(rule.rationale)}</p>"
             f"<p><strong>Suggested fix.</strong> {_e(rule.fix)}</p>"
+            f"<p><strong>Fails:</strong> {_e(rule.problem)} <strong>Better:</strong> {_e(rule.better)}</p>"
+            f"<p class='muted'><strong>Limits.</strong> {_e(rule.limitations)}</p>"
             + (f"<p><strong>Thresholds</strong></p><ul>{options}</ul>" if options else "")
             + f"<p><a href='{_e(_figure_link({'rule': rule.id}))}'>Figures with this finding</a></p></article>")
     return "".join(items)
