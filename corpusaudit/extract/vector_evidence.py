@@ -14,7 +14,9 @@ import pymupdf
 from corpusaudit.model import PathItem, TextSpan, VectorEvidence
 
 CURVE_SAMPLES = 8  # points per cubic Bezier segment: enough to recover arcs of pie wedges
-_BEZIER_T = np.linspace(0.0, 1.0, CURVE_SAMPLES + 1)[1:]
+# Bernstein weights of the samples t = 1/8 .. 1 (rows) for the four control points (columns).
+_T = np.arange(1, CURVE_SAMPLES + 1)[:, None] / CURVE_SAMPLES
+_BEZIER_WEIGHTS = np.hstack([(1 - _T) ** 3, 3 * (1 - _T) ** 2 * _T, 3 * (1 - _T) * _T**2, _T**3])
 
 
 def _rgb_from_int(value: int) -> tuple[float, float, float]:
@@ -32,37 +34,54 @@ def _colour(value) -> tuple[float, float, float] | None:
     return tuple(float(v) for v in value[:3])
 
 
-def _path_points(items) -> list[tuple[float, float]]:
-    points: list[tuple[float, float]] = []
+def _all_path_points(drawings: list[dict], matrix: pymupdf.Matrix) -> list[list[tuple[float, float]]]:
+    """Each drawing's vertices through matrix, curves sampled, repeated points dropped.
 
-    def add(point) -> None:
-        xy = (float(point.x), float(point.y))
-        if not points or points[-1] != xy:
-            points.append(xy)
-
-    for item in items:
-        op = item[0]
-        if op == "l":
-            add(item[1])
-            add(item[2])
-        elif op == "c":
-            p0, p1, p2, p3 = (np.array([p.x, p.y]) for p in item[1:5])
-            add(item[1])
-            t = _BEZIER_T[:, None]
-            curve = ((1 - t) ** 3) * p0 + 3 * ((1 - t) ** 2) * t * p1 + 3 * (1 - t) * t**2 * p2 + t**3 * p3
-            for x, y in curve:
-                xy = (float(x), float(y))
-                if points[-1] != xy:
-                    points.append(xy)
-        elif op == "re":
-            rect = item[1]
-            for xy in ((rect.x0, rect.y0), (rect.x1, rect.y0), (rect.x1, rect.y1), (rect.x0, rect.y1)):
-                points.append((float(xy[0]), float(xy[1])))
-        elif op == "qu":
-            quad = item[1]
-            for corner in (quad.ul, quad.ur, quad.lr, quad.ll):
-                add(corner)
-    return points
+    All drawings of a region go through numpy together: a scatter plot is thousands of tiny
+    drawings of four curves each, too many for per-curve arithmetic in Python. An affine map
+    commutes with Bezier evaluation, so control points are transformed first.
+    """
+    raw: list[tuple[float, float]] = []  # vertices in page points; curve samples are slots
+    keep_repeat: list[int] = []  # indices of rectangle corners, kept even when repeated
+    controls: list[tuple[float, ...]] = []
+    slots: list[int] = []
+    starts: list[int] = []
+    placeholder = [(0.0, 0.0)] * CURVE_SAMPLES
+    for drawing in drawings:
+        starts.append(len(raw))
+        for item in drawing["items"]:
+            op = item[0]
+            if op == "l":
+                raw += ((item[1].x, item[1].y), (item[2].x, item[2].y))
+            elif op == "c":
+                p0, p1, p2, p3 = item[1:5]
+                raw.append((p0.x, p0.y))
+                slots.append(len(raw))
+                controls.append((p0.x, p0.y, p1.x, p1.y, p2.x, p2.y, p3.x, p3.y))
+                raw += placeholder
+            elif op == "re":
+                rect = item[1]
+                keep_repeat += range(len(raw), len(raw) + 4)
+                raw += ((rect.x0, rect.y0), (rect.x1, rect.y0), (rect.x1, rect.y1), (rect.x0, rect.y1))
+            elif op == "qu":
+                quad = item[1]
+                raw += ((q.x, q.y) for q in (quad.ul, quad.ur, quad.lr, quad.ll))
+    if not raw:
+        return [[] for _ in drawings]
+    affine = np.array([[matrix.a, matrix.b], [matrix.c, matrix.d]])
+    shift = np.array([matrix.e, matrix.f])
+    points = np.array(raw, dtype=np.float64) @ affine + shift
+    if controls:
+        control = np.array(controls, dtype=np.float64).reshape(-1, 4, 2) @ affine + shift
+        samples = np.einsum("tk,nkd->ntd", _BEZIER_WEIGHTS, control)
+        points[np.array(slots)[:, None] + np.arange(CURVE_SAMPLES)] = samples
+    keep = np.ones(len(points), dtype=bool)
+    keep[1:] = (points[1:] != points[:-1]).any(axis=1)
+    keep[keep_repeat] = True
+    keep[starts] = True  # a drawing's first vertex has nothing before it
+    bounds = np.searchsorted(np.flatnonzero(keep), starts + [len(points)])
+    kept = list(map(tuple, points[keep].tolist()))
+    return [kept[bounds[i]:bounds[i + 1]] for i in range(len(drawings))]
 
 
 def _is_rect(items) -> bool:
@@ -85,19 +104,20 @@ def figure_matrix(page: pymupdf.Page, clip: pymupdf.Rect, scale: float) -> pymup
 
 
 def _box(rect, matrix: pymupdf.Matrix) -> tuple[float, float, float, float]:
-    shown = pymupdf.Rect(rect) * matrix
-    return (shown.x0, shown.y0, shown.x1, shown.y1)
+    """The rectangle through matrix (a page rotation, shift and scale), as (x0, y0, x1, y1)."""
+    x0, y0, x1, y1 = rect
+    a, b, c, d, e, f = matrix
+    xs = (x0 * a + y0 * c + e, x1 * a + y1 * c + e)
+    ys = (x0 * b + y0 * d + f, x1 * b + y1 * d + f)
+    return (min(xs), min(ys), max(xs), max(ys))
 
 
 def path_items(drawings: list[dict], matrix: pymupdf.Matrix, scale: float) -> list[PathItem]:
     """PyMuPDF drawings (page points) as PathItems in figure pixels (matrix from figure_matrix)."""
+    inked = [d for d in drawings if d.get("type") in ("f", "s", "fs")]  # clip paths and groups carry no ink
     paths: list[PathItem] = []
-    for drawing in drawings:
-        kind = drawing.get("type")
-        if kind not in ("f", "s", "fs"):
-            continue  # clip paths and groups carry no ink
-        points = [(x * matrix.a + y * matrix.c + matrix.e, x * matrix.b + y * matrix.d + matrix.f)
-                  for x, y in _path_points(drawing["items"])]
+    for drawing, points in zip(inked, _all_path_points(inked, matrix)):
+        kind = drawing["type"]
         paths.append(PathItem(
             kind=kind,
             bbox=_box(drawing["rect"], matrix),

@@ -1,23 +1,31 @@
 """Text of a figure: numbers in labels and, for rasters, text recognition of chosen strips.
 
 Vector figures state their text exactly (figure.vector.texts). Rasters are read with
-tesseract through pytesseract, only in the strips a measurement asks for, and the words
-are cached per figure. When tesseract is not installed, OCR raises
-MeasurementUnavailable so the rules that need text are listed as unmeasured.
+tesseract in-process (the tesserocr binding: no process start per strip, which cost more
+than the recognition itself), only in the strips a measurement asks for. When the binding
+or the English model (tesseract-ocr-eng) is missing, OCR raises MeasurementUnavailable so
+the rules that need text are listed as unmeasured.
 """
 
 from __future__ import annotations
 
 import functools
+import glob
 import os
 import re
-import shutil
 
-import numpy as np
+# One thread per recognition: parallelism comes from the document workers (--jobs). Must be
+# set before the library loads.
+os.environ.setdefault("OMP_THREAD_LIMIT", "1")
 
-from corpusaudit.model import BBox, MeasurementUnavailable, TextSpan
+import numpy as np  # noqa: E402
 
-OCR_UNAVAILABLE = "text recognition unavailable (install tesseract-ocr)"
+from corpusaudit.model import BBox, MeasurementUnavailable, TextSpan  # noqa: E402
+
+OCR_UNAVAILABLE = "text recognition unavailable (install tesserocr and tesseract-ocr-eng)"
+# Where Debian, Fedora, Homebrew and source builds put the models, newest first.
+TESSDATA_GLOBS = ("/usr/share/tesseract-ocr/*/tessdata", "/usr/share/tesseract-ocr/tessdata", "/usr/share/tessdata",
+                  "/usr/local/share/tessdata", "/opt/homebrew/share/tessdata")
 _NUMBER = re.compile(r"^[(\[]?([-+]?)(\d{1,3}(?:[,\u202f\u2009 ]\d{3})+|\d*\.?\d+)(?:[eE]([-+]?\d+))?\s*(%|[kKMB])?[)\]]?$")
 _SCALE = {"k": 1e3, "K": 1e3, "M": 1e6, "B": 1e9, "%": 1.0, None: 1.0}
 _MINUS = str.maketrans({"\u2212": "-", "\u2013": "-", "\u2012": "-", "$": "", "€": "", "£": ""})
@@ -42,32 +50,54 @@ def parse_percentage(text: str) -> float | None:
     return float(match.group(1).replace(",", ".")) if match else None
 
 
-@functools.cache
+def tessdata_dir() -> str | None:
+    """The folder holding eng.traineddata: $TESSDATA_PREFIX first, then the usual install places."""
+    candidates = [os.environ.get("TESSDATA_PREFIX", "")]
+    for pattern in TESSDATA_GLOBS:
+        candidates += sorted(glob.glob(pattern), reverse=True)
+    for folder in candidates:
+        if folder and os.path.isfile(os.path.join(folder, "eng.traineddata")):
+            return folder
+    return None
+
+
 def ocr_available() -> bool:
-    if shutil.which("tesseract") is None:
-        return False
+    return _engine() is not None
+
+
+@functools.cache
+def _engine_for(pid: int):
+    """One recogniser per process (a forked worker must not share its parent's)."""
     try:
-        import pytesseract
-        pytesseract.get_tesseract_version()
-    except Exception:  # the wrapper is missing or the binary does not run
-        return False
-    return True
+        import tesserocr
+    except ImportError:
+        return None
+    folder = tessdata_dir()
+    if folder is None:
+        return None
+    try:
+        return tesserocr.PyTessBaseAPI(path=folder, lang="eng")
+    except RuntimeError:  # a model file tesseract cannot read
+        return None
+
+
+def _engine():
+    return _engine_for(os.getpid())
 
 
 def ocr_words(rgb: np.ndarray, region: BBox, *, psm: int = 11, whitelist: str = "",
               upscale: float = 2.0, min_confidence: float = 30.0) -> list[TextSpan]:
     """Words tesseract reads inside region of an RGB image, with boxes in image pixels.
 
-    The strip is upscaled (tesseract reads glyphs of ~20 px best) and binarised to grey.
-    Raises MeasurementUnavailable when tesseract is not installed.
+    The strip is upscaled (tesseract reads glyphs of ~20 px best) and turned to grey.
+    Raises MeasurementUnavailable when text recognition is not installed.
     """
     if not ocr_available():
         raise MeasurementUnavailable(OCR_UNAVAILABLE)
+    engine = _engine()
     import cv2
-    import pytesseract
-
-    # One thread per tesseract run: parallelism comes from the document workers (--jobs).
-    os.environ.setdefault("OMP_THREAD_LIMIT", "1")
+    import tesserocr
+    from PIL import Image
 
     h, w = rgb.shape[:2]
     x0, y0 = max(0, int(region[0])), max(0, int(region[1]))
@@ -79,17 +109,26 @@ def ocr_words(rgb: np.ndarray, region: BBox, *, psm: int = 11, whitelist: str = 
         grey = 255 - grey
     grey = cv2.resize(grey, None, fx=upscale, fy=upscale, interpolation=cv2.INTER_CUBIC)
     grey = cv2.copyMakeBorder(grey, 10, 10, 10, 10, cv2.BORDER_REPLICATE)
-    config = f"--psm {psm}" + (f" -c tessedit_char_whitelist={whitelist}" if whitelist else "")
-    data = pytesseract.image_to_data(grey, config=config, output_type=pytesseract.Output.DICT)
+    engine.SetPageSegMode(psm)
+    engine.SetVariable("tessedit_char_whitelist", whitelist)
+    engine.SetImage(Image.fromarray(grey))
+    engine.Recognize()
     words: list[TextSpan] = []
-    for text, conf, left, top, width, height in zip(data["text"], data["conf"], data["left"], data["top"],
-                                                    data["width"], data["height"]):
-        text = text.strip()
-        if not text or float(conf) < min_confidence:
+    level = tesserocr.RIL.WORD
+    iterator = engine.GetIterator()
+    if iterator is None:  # nothing recognised
+        return words
+    for word in tesserocr.iterate_level(iterator, level):
+        if word.Empty(level):
             continue
-        bx0 = x0 + (left - 10) / upscale
-        by0 = y0 + (top - 10) / upscale
-        words.append(TextSpan(text=text, bbox=(bx0, by0, bx0 + width / upscale, by0 + height / upscale),
+        text = (word.GetUTF8Text(level) or "").strip()
+        box = word.BoundingBox(level)
+        if not text or box is None or word.Confidence(level) < min_confidence:
+            continue
+        left, top, right, bottom = box
+        bx0, by0 = x0 + (left - 10) / upscale, y0 + (top - 10) / upscale
+        words.append(TextSpan(text=text, bbox=(bx0, by0, bx0 + (right - left) / upscale,
+                                               by0 + (bottom - top) / upscale),
                               size_pt=0.0, angle=0.0, font="ocr"))
     return words
 
