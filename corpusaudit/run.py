@@ -6,7 +6,6 @@ from __future__ import annotations
 import csv
 import dataclasses
 import functools
-import io
 import logging
 import os
 import time
@@ -14,9 +13,9 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Iterator
 
+import cv2
 import numpy as np
 import pymupdf
-from PIL import Image
 
 from corpusaudit import __version__
 from corpusaudit.checks.runner import check_figure
@@ -78,11 +77,17 @@ class AuditSummary:
 
 
 def _png(pixels: np.ndarray, max_side: int) -> bytes:
-    image = Image.fromarray(pixels)
-    image.thumbnail((max_side, max_side), Image.Resampling.LANCZOS)
-    buffer = io.BytesIO()
-    image.save(buffer, "PNG", compress_level=3)  # optimize=True costs ~20 ms a figure for a few % of bytes
-    return buffer.getvalue()
+    """PNG of the figure shrunk to max_side (area averaging: no ringing on line art)."""
+    height, width = pixels.shape[:2]
+    scale = max_side / max(height, width)
+    if scale < 1.0:
+        pixels = cv2.resize(pixels, (max(1, round(width * scale)), max(1, round(height * scale))),
+                            interpolation=cv2.INTER_AREA)
+    # OpenCV's encoder is about twice as fast as Pillow's at the same compression level.
+    ok, encoded = cv2.imencode(".png", cv2.cvtColor(pixels, cv2.COLOR_RGB2BGR), [cv2.IMWRITE_PNG_COMPRESSION, 3])
+    if not ok:
+        raise ValueError("PNG encoding failed")
+    return encoded.tobytes()
 
 
 def _classify(figure: Figure, classifier: Classifier | None, config: Config, measurements: Measurements) -> None:
