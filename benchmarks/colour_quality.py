@@ -27,7 +27,7 @@ from collections import defaultdict
 from multiprocessing import Pool
 from pathlib import Path
 
-os.environ.setdefault("OMP_THREAD_LIMIT", "1")  # tesseract: one thread per worker process
+os.environ.setdefault("OMP_THREAD_LIMIT", "1")  # text recognition (other rules): one thread per worker
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
 import numpy as np  # noqa: E402
@@ -189,6 +189,26 @@ def colour_maths_timing(repeats: int = 3) -> None:
           + f"; total {total:.0f} ms (target < 200 ms)")
 
 
+def text_finder_timing(count: int = 20, repeats: int = 3) -> None:
+    """The raster text finder (measure/glyphs.py) alone on raster charts of the labelled set
+    resized to 1000x700 (target < 15 ms per figure; issue #8's throughput budget)."""
+    import cv2
+
+    from corpusaudit.measure.glyphs import find_text_lines
+
+    best = []
+    for index, case in enumerate(_cases(count, SEED + 2)):
+        pixels = cv2.resize(cc.raster_figure(case, ppi=200).pixels, (1000, 700), interpolation=cv2.INTER_AREA)
+        timings = []
+        for _ in range(repeats):
+            started = time.perf_counter()
+            find_text_lines(pixels)
+            timings.append(1000 * (time.perf_counter() - started))
+        best.append(min(timings))
+    print(f"raster text finder on {count} charts at 1000x700, best of {repeats} each: median {np.median(best):.1f} ms, "
+          f"max {max(best):.1f} ms per figure (target < 15 ms)")
+
+
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--cases", type=int, default=130, help="charts (each gives a vector and a raster figure)")
@@ -208,6 +228,7 @@ def main() -> None:
           f"{args.jobs} worker(s); {elapsed:.0f} s wall")
     summarise(rows)
     colour_maths_timing()
+    text_finder_timing()
 
 
 if __name__ == "__main__":

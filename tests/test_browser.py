@@ -96,7 +96,7 @@ def test_loads_without_errors_and_shows_every_figure(page, audit_dir):
     assert page.locator("#cards .card").count() == expected
     assert page.text_content("#figure-count").startswith(f"Showing 1\u2013{expected} of {expected} figures")
     # Thumbnails load from assets/ under the page's Content-Security-Policy.
-    page.wait_for_function("[...document.querySelectorAll('#cards img')].every(i => i.complete)")
+    page.wait_for_function("() => [...document.querySelectorAll('#cards img')].every(i => i.complete)")
     assert page.eval_on_selector_all("#cards img", "imgs => imgs.filter(i => i.naturalWidth === 0).length") == 0
     assert page.console_errors == []
 
@@ -149,7 +149,7 @@ def test_hostile_strings_render_as_text_and_never_run(page, audit_dir):
 def test_detail_outlines_regions_scaled_to_the_displayed_image(page, audit_dir):
     out_dir, (_, figures, findings, _) = audit_dir
     _open(page, out_dir, "#figure/fig0")
-    page.wait_for_function("document.querySelector('.figure-frame img').complete")
+    page.wait_for_function("() => document.querySelector('.figure-frame img').complete")
     regions = [f for f in findings if f["figure_id"] == "fig0" and f["fx0"] is not None]
     assert page.locator(".region").count() == len(regions) == 2
     image = page.locator(".figure-frame img").bounding_box()
@@ -175,7 +175,7 @@ def test_keyboard_opens_a_figure_and_escape_returns(page, audit_dir):
     assert page.evaluate("location.hash").startswith("#figure/")
     assert page.evaluate("document.activeElement.id") == "figure-h"
     page.keyboard.press("ArrowRight")
-    page.wait_for_function("location.hash.includes('fig2') || location.hash.includes('fig4')")
+    page.wait_for_function("() => location.hash.includes('fig2') || location.hash.includes('fig4')")
     page.keyboard.press("Escape")
     page.wait_for_selector("#view-figures:not([hidden])")
     assert f"rule={REGISTERED}" in page.evaluate("location.hash")
@@ -248,7 +248,7 @@ class _QuietHandler(http.server.SimpleHTTPRequestHandler):
 def test_document_view_uses_page_thumbnails_when_written(page, audit_dir):
     out_dir, _ = audit_dir
     _open(page, out_dir, "#document/doc1")
-    page.wait_for_function("[...document.images].every(i => i.complete)")
+    page.wait_for_function("() => [...document.images].every(i => i.complete)")
     images = page.eval_on_selector_all("#view-document img.page-image",
                                        "imgs => imgs.map(i => [i.getAttribute('src'), i.naturalWidth])")
     assert images == [["assets/pages/doc1-p2.png", 325], ["assets/pages/doc1-p3.png", 325]]  # 420 * 612 / 792
@@ -266,7 +266,7 @@ def test_works_from_a_static_web_server(page, audit_dir):
     try:
         page.goto(f"http://127.0.0.1:{server.server_address[1]}/report.html#figures")
         page.wait_for_selector("html[data-ready=true]")
-        page.wait_for_function("[...document.querySelectorAll('#cards img')].every(i => i.complete)")
+        page.wait_for_function("() => [...document.querySelectorAll('#cards img')].every(i => i.complete)")
         assert page.eval_on_selector_all("#cards img", "imgs => imgs.filter(i => i.naturalWidth === 0).length") == 0
         assert page.console_errors == []
     finally:
@@ -280,7 +280,7 @@ def test_screenshots(page, audit_dir):
     shots = {"overview": "", "figures": "#figures", "figure-detail": "#figure/fig0", "document": "#document/doc0"}
     for name, fragment in shots.items():
         _open(page, out_dir, fragment)
-        page.wait_for_function("[...document.images].every(i => i.complete)")
+        page.wait_for_function("() => [...document.images].every(i => i.complete)")
         path = ARTIFACTS / f"dashboard-{name}.png"
         page.screenshot(path=str(path), full_page=True)
         assert path.stat().st_size > 0

@@ -3,7 +3,7 @@
 References: WCAG 2.1 success criterion 1.4.3 and its definitions of relative luminance and
 contrast ratio (#777777 on white: L = 0.1845, (1 + 0.05) / (0.1845 + 0.05) = 4.48:1, as the
 WebAIM contrast checker also reports); 'large scale' text is 18 pt, or 14 pt bold. Text
-size: 6 pt is common practice for print. OCR tests need tesseract and are skipped without it.
+size: 6 pt is common practice for print. Raster text is found by measure/glyphs.py (no OCR).
 """
 
 from __future__ import annotations
@@ -11,12 +11,7 @@ from __future__ import annotations
 import pytest
 
 from benchmarks.colour_cases import ColourCase, raster_figure, vector_figure
-from corpusaudit.measure.text import ocr_available
 from tests.conftest import run_rule as run
-
-needs_ocr = pytest.mark.skipif(not ocr_available(), reason="tesseract is not installed")
-
-
 
 
 def labelled_case(text_colour: str = "#000000", size: float = 10.0, bold: bool = False,
@@ -78,8 +73,7 @@ def test_text_on_a_dark_bar_is_judged_against_the_bar():
     assert float(findings[0].draft.value) < 3.0
 
 
-@needs_ocr
-def test_raster_contrast_from_ocr_words():
+def test_raster_contrast_from_glyphs():
     # #999999 on white is 2.85:1 (WCAG formula); #333333 is 12.63:1.
     findings, unmeasured = run(raster_figure(labelled_case("#999999", size=11), ppi=200), "text-contrast")
     assert not unmeasured and findings
@@ -124,7 +118,6 @@ def test_print_size_follows_the_placement_scale():
     assert min(span.size_pt for span in evidence.texts) == pytest.approx(5.0, abs=0.05)
 
 
-@needs_ocr
 def test_raster_small_text_warns_and_normal_text_passes():
     findings, unmeasured = run(raster_figure(labelled_case(size=4.5), ppi=200), "text-size")
     assert not unmeasured and findings

@@ -35,7 +35,8 @@ def is_large_text(size_pt: float | None, bold: bool, large_pt: float, large_bold
         low vision. The WCAG 2.x contrast ratio of each piece of text against its local background
         is compared with 4.5:1 (normal text) or 3:1 (large text: 18 pt, or 14 pt bold); the lowest
         failing ratio is reported with the text's region. Vector text uses its stated colour;
-        raster text is read by OCR and its ink estimated from the cores of its strokes.""",
+        raster text is found from the shapes of its glyphs and its ink estimated from the cores of
+        its strokes.""",
     fix="""Darken the text (or lighten its background) until the ratio is at least 4.5:1; inside
         dark or saturated marks use white text; avoid grey-on-grey tick labels.""",
     problem="""Light grey tick labels (#BBBBBB) on white: contrast ratio 1.9:1.""",
@@ -58,19 +59,24 @@ def text_contrast(ctx: CheckContext) -> Outcome:
     kind = "large" if large else "normal"
     size = f"{worst.size_pt:g} pt " if worst.size_pt is not None else ""
     more = f"; {len(failing)} text item(s) below their limit" if len(failing) > 1 else ""
+    name = f"'{worst.text}'" if worst.source == "vector" else worst.text
     return Outcome(findings=(Draft(
-        message=f"'{worst.text}' ({size}{kind} text) has contrast {ratio:.2f}:1 against its background, "
+        message=f"{name} ({size}{kind} text) has contrast {ratio:.2f}:1 against its background, "
                 f"below {limit:g}:1{more}",
         value=f"{ratio:.2f}", threshold=f"{limit:g}", region=worst.bbox),))
+
+
+def _characters(line) -> int:
+    """Letters or digits of a vector span; glyphs of a raster line (its text is not read)."""
+    return line.glyphs if line.source == "glyphs" else sum(ch.isalnum() for ch in line.text)
 
 
 def smallest_text(lines, per_size_minimum: int):
     """The smallest text that is not a single stray glyph: spans of at least 2 letters or
     digits, or single characters whose size is shared by `per_size_minimum` spans (tick labels)."""
     sized = [line for line in lines if line.size_pt is not None]
-    singles = Counter(round(line.size_pt, 1) for line in sized if sum(ch.isalnum() for ch in line.text) == 1)
-    kept = [line for line in sized if sum(ch.isalnum() for ch in line.text) >= 2
-            or singles[round(line.size_pt, 1)] >= per_size_minimum]
+    singles = Counter(round(line.size_pt, 1) for line in sized if _characters(line) == 1)
+    kept = [line for line in sized if _characters(line) >= 2 or singles[round(line.size_pt, 1)] >= per_size_minimum]
     return sorted(kept, key=lambda line: line.size_pt)
 
 
@@ -83,19 +89,21 @@ def smallest_text(lines, per_size_minimum: int):
         Option("min_pt", 6.0, "smallest text size (points at print size) that passes",
                "common practice for print: journals ask for 6-8 pt as the smallest lettering", minimum=0.0),
         Option("raster_agreeing_words", 2,
-               "raster (OCR) text: this many words must be below the limit before it warns", minimum=1),
+               "raster text: this many text lines must be below the limit before it warns", minimum=1),
     ),
     rationale="""Text below about 6 pt at the size the figure is printed cannot be read comfortably,
         and thin strokes may vanish in print. Vector text states its size; raster text size is
-        estimated from the height of its letters (OCR) and the figure's print size, so single
+        estimated from the height of its capitals, digits or short letters (found from the glyph
+        shapes, not read) and the figure's print size, so single
         stray glyphs are ignored and several words must agree before a raster warns. Image files
         have no print size and are not judged.""",
     fix="""Enlarge the labels (or draw the chart at its final size so the fonts are not scaled
         down), aiming at 7-9 pt for tick labels and more for titles.""",
     problem="""Axis labels set at 4 pt at the printed size of the figure.""",
     better="""Labels of at least 6 pt (8 pt or more is easier) at printed size.""",
-    limitations="""Raster text height is measured in pixels and converted with the placed size; OCR or stroke
-        detection may miss very small text.""",
+    limitations="""Raster text height is measured in pixels and converted with the placed size, assuming
+        DejaVu-like proportions (cap height 0.74 em; fonts with smaller capitals read a little small);
+        single-glyph labels and text touching other marks are not found.""",
 )
 def text_size(ctx: CheckContext) -> Outcome:
     if ctx.figure.source == "image":
@@ -106,12 +114,12 @@ def text_size(ctx: CheckContext) -> Outcome:
         return Outcome()
     limit = ctx.options["min_pt"]
     below = [line for line in ordered if line.size_pt < limit]
-    ocr = ordered[0].source == "ocr"
-    if not below or (ocr and len(below) < ctx.options["raster_agreeing_words"]):
+    raster = ordered[0].source == "glyphs"
+    if not below or (raster and len(below) < ctx.options["raster_agreeing_words"]):
         return Outcome()
     smallest = below[0]
-    estimated = "about " if ocr else ""
+    name, estimated = (smallest.text, "about ") if raster else (f"'{smallest.text}'", "")
     return Outcome(findings=(Draft(
-        message=f"'{smallest.text}' is {estimated}{smallest.size_pt:.1f} pt at print size, below {limit:g} pt; "
+        message=f"{name} is {estimated}{smallest.size_pt:.1f} pt at print size, below {limit:g} pt; "
                 f"{len(below)} text item(s) below the limit",
         value=f"{smallest.size_pt:.1f}", threshold=f"{limit:g}", region=smallest.bbox),))

@@ -14,9 +14,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from corpusaudit.measure import colour, measurement, quality
+from corpusaudit.measure import colour, glyphs, measurement, quality
 from corpusaudit.measure.shapes import polyline_length, require_pixels
-from corpusaudit.measure.text import ocr_words
 from corpusaudit.model import RGB, BBox, Figure, MeasurementUnavailable, PathItem
 
 MAX_CATEGORICAL = 12  # more distinct chromatic colours than this: a continuous scale, not categories
@@ -24,12 +23,6 @@ GREY_CHROMA = 8.0  # C* below this is neutral: axes, grid, text, frames (colour.
 BACKGROUND_SHARE = 0.4  # a fill covering this share of the figure is a background panel
 MIN_SCALE_STEPS = 8  # fewer distinct colours do not describe a continuous scale
 
-# Ink-height of a word as a fraction of its font size (em), from DejaVu Sans (matplotlib's
-# default): ascender/cap 0.76, x-height 0.55, descender 0.24. Fonts with smaller
-# proportions (Arial, Times) come out slightly larger: the estimate errs towards passing.
-_ASCENDING = set("ABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789bdfhiklt")
-_DESCENDING = set("gjpqy")
-_TOP_TALL, _TOP_SHORT, _DESCENDER = 0.76, 0.55, 0.24
 _BOLD = re.compile(r"bold|black|heavy|semibold|demi", re.IGNORECASE)
 
 
@@ -72,15 +65,17 @@ class FoundScale:
 
 @dataclass(frozen=True)
 class TextLine:
-    """A piece of text: a vector span or an OCR word. size_pt is None without a print size."""
+    """A piece of text: a vector span, or a raster line found from its glyphs (its text then
+    names it by place, see _glyph_label). size_pt is None without a print size."""
 
     text: str
     bbox: BBox  # figure pixels
     size_pt: float | None
-    colour: RGB | None  # stated (vector); None for OCR
+    colour: RGB | None  # stated (vector), or the measured stroke-core colour (glyphs)
     bold: bool
-    source: str  # "vector" | "ocr"
+    source: str  # "vector" | "glyphs"
     em_px: float  # font size in figure pixels (stated, or estimated from the ink height)
+    glyphs: int = 0  # raster: glyphs (connected marks) in the line; its text is not read
 
 
 @dataclass(frozen=True)
@@ -94,6 +89,7 @@ class TextContrast:
     background: RGB
     size_pt: float | None
     bold: bool
+    source: str = "vector"  # "vector" | "glyphs" (text then names the line by place)
 
 
 @dataclass(frozen=True)
@@ -124,14 +120,15 @@ def _union(boxes: list[BBox]) -> BBox | None:
 
 
 def _polygon_area(points: list[tuple[float, float]]) -> float:
+    """Shoelace area. Plain Python: paths are short and a figure may hold thousands of them."""
     if len(points) < 3:
         return 0.0
-    x, y = np.asarray(points, dtype=float).T
-    return float(abs(np.dot(x, np.roll(y, -1)) - np.dot(y, np.roll(x, -1))) / 2.0)
+    twice = sum(x0 * y1 - x1 * y0 for (x0, y0), (x1, y1) in zip(points, points[1:] + points[:1]))
+    return abs(twice) / 2.0
 
 
-def _displayed(rgb: RGB, opacity: float, background: np.ndarray) -> np.ndarray:
-    """A translucent fill as seen over the figure background (sRGB blend, as PDF viewers do)."""
+def _displayed(rgb: RGB | np.ndarray, opacity: float | np.ndarray, background: np.ndarray) -> np.ndarray:
+    """Translucent fills as seen over the figure background (sRGB blend, as PDF viewers do)."""
     return opacity * np.asarray(rgb) + (1.0 - opacity) * background
 
 
@@ -235,11 +232,12 @@ def _vector_palette(figure: Figure) -> tuple[np.ndarray, np.ndarray, list[BBox]]
     figure_area = max(1.0, float(width) * float(height))
     background = np.asarray(colour.estimate_background(_inner(figure.pixels))) if figure.pixels is not None \
         else np.ones(3)
-    colours, weights, boxes = [], [], []
+    colours, opacities, weights, boxes = [], [], [], []
 
     def add(rgb: RGB, opacity: float, weight: float, path: PathItem) -> None:
         if weight > 0 and opacity > 0.05:
-            colours.append(_displayed(rgb, opacity, background))
+            colours.append(rgb)
+            opacities.append(opacity)
             weights.append(weight)
             boxes.append(path.bbox)
 
@@ -250,7 +248,9 @@ def _vector_palette(figure: Figure) -> tuple[np.ndarray, np.ndarray, list[BBox]]
             add(path.fill, path.fill_opacity, area, path)
         if path.stroke is not None:
             add(path.stroke, path.stroke_opacity, polyline_length(path.points) * max(path.width, 1.0), path)
-    return np.asarray(colours).reshape(-1, 3), np.asarray(weights, dtype=float), boxes
+    displayed = _displayed(np.asarray(colours, dtype=float).reshape(-1, 3),
+                           np.asarray(opacities, dtype=float)[:, None], background)
+    return displayed, np.asarray(weights, dtype=float), boxes
 
 
 @measurement("palette")
@@ -306,65 +306,43 @@ def pixels_per_point(figure: Figure) -> float | None:
     return width_px / width_pt
 
 
-def ink_height_em(text: str) -> float:
-    """Expected height of a word's ink box in em, from which letters it holds (see _TOP_TALL)."""
-    letters = set(text)
-    top = _TOP_TALL if letters & _ASCENDING else _TOP_SHORT
-    return top + (_DESCENDER if letters & _DESCENDING else 0.0)
-
-
 def _alphanumeric(text: str) -> int:
     return sum(ch.isalnum() for ch in text)
 
 
-def plausible_word(text: str) -> bool:
-    """OCR output worth judging: 3+ letters or digits, or a number of 2+ digits. Shorter
-    reads are mostly marks, markers or cell edges taken for letters ('ee', 'Ge')."""
-    core = text.strip(".,;:()[]%'\"")
-    digits = core.replace(".", "").replace(",", "").replace("-", "").replace("\u2212", "")
-    return _alphanumeric(core) >= 3 or (len(digits) >= 2 and digits.isdigit())
+@measurement("glyph_lines")
+def glyph_lines(figure: Figure, measurements) -> list[glyphs.GlyphLine]:
+    """Raster text lines found from their glyphs (measure/glyphs.py), no text recognition.
+    Photographs and other continuous-tone images hold no chart text: none is looked for."""
+    pixels = require_pixels(figure)
+    if not quality.is_line_art(pixels):
+        return []
+    return glyphs.find_text_lines(pixels)
 
 
-OCR_MAX_PIXELS = 1_200_000  # ~0.5 s of tesseract; larger costs more than it finds
-
-
-def _ocr_upscale(per_point: float | None) -> float:
-    """Tesseract reads glyphs of ~20 px best: enlarge so that 4 pt print reaches ~22 px."""
-    if per_point is None:
-        return 2.0
-    return float(np.clip(5.5 / per_point, 1.5, 3.0))
+def _glyph_label(line: glyphs.GlyphLine) -> str:
+    """How a glyph line is named in messages: it has no text, so by kind, size and place."""
+    turn = {0: "", 90: "rotated ", -90: "rotated "}[line.angle]
+    return f"{turn}text of {line.glyphs} glyph(s) at x={line.bbox[0]:.0f}, y={line.bbox[1]:.0f}"
 
 
 @measurement("text_lines")
 def text_lines(figure: Figure, measurements) -> list[TextLine]:
-    """The figure's text. Vector: every span with its stated size and colour. Raster: OCR
-    words over the whole figure (at least 2 letters or digits); size in points from the ink
-    height (ink_height_em) and the figure's pixels per point, None for image files.
-    Raises MeasurementUnavailable when a raster has no pixels or OCR is not installed."""
+    """The figure's text. Vector: every span with its stated size and colour. Raster: the
+    lines of glyph_lines; size in points from the cap height (or x-height) and the
+    figure's pixels per point, None for image files.
+    Raises MeasurementUnavailable when a raster has no pixels."""
     if _is_vector(figure):
         scale = figure.vector.scale
         return [TextLine(span.text, span.bbox, span.size_pt, span.colour, bool(_BOLD.search(span.font or "")), "vector",
                          span.size_pt * scale)
                 for span in figure.vector.texts if _alphanumeric(span.text) > 0 and span.size_pt > 0]
-    pixels = require_pixels(figure)
-    if not quality.is_line_art(pixels):
-        return []  # a photograph or continuous-tone image: no chart text to read, and OCR costs seconds
     per_point = pixels_per_point(figure)
-    height, width = pixels.shape[:2]
-    # Tesseract's time grows with the pixel count: cap the enlarged image at OCR_MAX_PIXELS.
-    upscale = min(_ocr_upscale(per_point), float(np.sqrt(OCR_MAX_PIXELS / (height * width))))
-    words = ocr_words(pixels, (0, 0, width, height), upscale=max(upscale, 1.0), min_confidence=60.0)
     lines = []
-    for word in words:
-        if not plausible_word(word.text):
-            continue
-        em_px = (word.bbox[3] - word.bbox[1]) / ink_height_em(word.text)
-        # A word's width is ~0.45-0.75 em per character: a box far off that is a misread.
-        em_per_char = (word.bbox[2] - word.bbox[0]) / len(word.text) / em_px
-        if not 0.3 <= em_per_char <= 1.2:
-            continue
-        size = None if per_point is None else round(em_px / per_point, 2)
-        lines.append(TextLine(word.text, word.bbox, size, None, False, "ocr", em_px))
+    for line in measurements.get("glyph_lines"):
+        size = None if per_point is None else round(line.em_px / per_point, 2)
+        lines.append(TextLine(_glyph_label(line), line.bbox, size, line.ink, False, "glyphs", line.em_px,
+                              line.glyphs))
     return lines
 
 
@@ -400,36 +378,34 @@ def _vector_contrast(line: TextLine, pixels: np.ndarray) -> TextContrast | None:
                         tuple(float(v) for v in background), line.size_pt, line.bold)
 
 
-MIN_RASTER_EM_PX = 9.0  # smaller glyphs have strokes under a pixel wide: no pixel shows the full ink
+# Raster text whose font is smaller than this (px per em) is not judged for contrast: its
+# stems (0.091 em in DejaVu Sans, measured with Pillow) are under 1.3 px wide, so no pixel is
+# wholly ink and the contrast reads too low (on generated charts: by 10-25% at 10-14 px,
+# within a few per cent from 14 px; benchmarks/colour_quality.py).
+MIN_CONTRAST_EM_PX = 14.0
 
 
-def _raster_contrast(line: TextLine, pixels: np.ndarray) -> TextContrast | None:
-    """Inside an OCR word box: the background is the modal colour, the ink the 2% of
-    pixels farthest from it in luminance (the cores of strokes, past their blended edges).
-    Glyphs too small to have stroke cores are not judged."""
-    samples = _box_pixels(pixels, line.bbox, margin=1)
-    if len(samples) < 16 or line.em_px < MIN_RASTER_EM_PX:
+def _raster_contrast(line: glyphs.GlyphLine, size_pt: float | None) -> TextContrast | None:
+    """A glyph line's stroke-core colour against its surround (glyphs.find_text_lines)."""
+    if line.em_px < MIN_CONTRAST_EM_PX:
         return None
-    background = _modal_colour(samples)
-    luminance = colour.relative_luminance(samples)
-    distance = np.abs(luminance - colour.relative_luminance(background))
-    core = samples[distance >= np.quantile(distance, 0.98)]
-    ink = np.median(core, axis=0) / 255.0
-    ratio = float(colour.contrast_ratio(ink, background))
-    return TextContrast(line.text, line.bbox, ratio, tuple(float(v) for v in ink),
-                        tuple(float(v) for v in background), line.size_pt, line.bold)
+    ratio = float(colour.contrast_ratio(np.asarray(line.ink), np.asarray(line.background)))
+    return TextContrast(_glyph_label(line), line.bbox, ratio, line.ink, line.background, size_pt, False, "glyphs")
 
 
 @measurement("text_contrast")
 def text_contrast(figure: Figure, measurements) -> list[TextContrast]:
     """WCAG contrast of every piece of text (see text_lines) against its local background."""
     pixels = require_pixels(figure)
-    measure = _vector_contrast if _is_vector(figure) else _raster_contrast
+    if not _is_vector(figure):
+        sizes = [line.size_pt for line in measurements.get("text_lines")]
+        found = (_raster_contrast(line, size) for line, size in zip(measurements.get("glyph_lines"), sizes))
+        return [item for item in found if item is not None]
     found = []
     for line in measurements.get("text_lines"):
-        if line.source == "vector" and line.colour is None:
+        if line.colour is None:
             continue
-        result = measure(line, pixels)
+        result = _vector_contrast(line, pixels)
         if result is not None:
             found.append(result)
     return found

@@ -6,6 +6,8 @@ build on these functions.
 
 from __future__ import annotations
 
+import math
+
 import cv2
 import numpy as np
 
@@ -64,10 +66,8 @@ def axis_aligned_segment(path: PathItem, tolerance: float = 0.5) -> str | None:
 
 
 def polyline_length(points: list[tuple[float, float]]) -> float:
-    if len(points) < 2:
-        return 0.0
-    array = np.asarray(points)
-    return float(np.hypot(*np.diff(array, axis=0).T).sum())
+    """Length along the vertices. Plain Python: paths are short and a figure may hold thousands."""
+    return sum((math.hypot(x1 - x0, y1 - y0) for (x0, y0), (x1, y1) in zip(points, points[1:])), 0.0)
 
 
 # ------------------------------------------------------------------ raster helpers

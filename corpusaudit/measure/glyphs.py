@@ -1,0 +1,411 @@
+"""Text lines in a raster figure found from the shapes of its glyphs, without reading them.
+
+Size and contrast checks need where text is, how tall its letters are and which colours
+its ink and background have, not what it says, so no text recognition is needed. The steps:
+
+1. Local background: the median grey over ~36 px windows (text covers well under half of
+   any such window, so the median is the paper, the panel or the bar the text sits on).
+2. Ink: pixels darker (dark text) or lighter (light text) than that background by at least
+   MIN_CONTRAST grey levels and by at least half the strongest contrast within 2 px, so
+   anti-aliased fringes stay out and neighbouring letters stay apart.
+3. Glyphs: connected components of glyph size whose strokes are thin for their height
+   (filled markers, bars, legend patches and thick lines have thick "strokes").
+4. Lines: glyphs linked to a neighbour along the reading direction when their baselines
+   or their tops align, their heights are alike and the gap is within a word space. Runs
+   of identical marks (hollow markers, dashes, grid crossings) are not text. A single
+   component counts only when it is a word whose letters have merged (small text).
+   Reading directions: horizontal, and rotated 90 degrees either way (axis titles).
+5. Heights: in each line the tall glyphs (capitals, digits, ascenders) give the cap height
+   and the short ones (x, o, e...) the x-height; either gives the font size in pixels.
+6. Colours: ink from the cores of the strokes (the pixels of highest contrast, past their
+   blended edges), background the modal colour of the surround outside the ink.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import cv2
+import numpy as np
+
+from corpusaudit.model import BBox, RGB
+
+MIN_CONTRAST = 14  # grey levels from the local background: JPEG noise on flat areas stays below
+BACKGROUND_STEP = 4  # the background map samples every 4th pixel ...
+BACKGROUND_WINDOW = 9  # ... and takes the median over 9x9 samples (36 px)
+TOPHAT_PX = 11  # strokes up to ~10 px wide (18 pt bold at 300 ppi) count as thin
+MIN_GLYPH_PX = 3  # shorter marks cannot be told from noise and dots
+MAX_GLYPH_SHARE = 0.08  # glyphs taller than this share of the figure's short side are shapes, not text
+MIN_MAX_GLYPH_PX = 24  # ... except in small images, where text may be relatively tall
+STROKE_SHARE = 0.3  # a glyph's widest stroke is under this share of its height (DejaVu Bold: ~0.2)
+ALIGN_SHARE = 0.15  # baselines (or tops) within this share of the glyph height are aligned
+GAP_SHARE = 0.7  # letter and word gaps: up to this share of the taller glyph's height
+UNIFORM_SHARE = 0.6  # this share of a line's surround matches its modal colour: a plain background
+INNER_UNIFORM_SHARE = 0.8  # ... and this share of the pixels between its letters
+BACKGROUND_TOLERANCE = 24  # grey levels per channel: JPEG noise around a flat colour stays within
+HEIGHT_RATIO = 2.2  # a descender letter against an x-height letter is ~1.4; more is another line
+
+# Ink heights in em, measured with Pillow on DejaVu Sans (matplotlib's default font):
+# capitals 0.729, digits 0.729-0.756, ascenders (b, d, h, k, l) 0.76-0.77; x-height letters
+# 0.547-0.574. Other fonts differ by a few per cent (Arial caps 0.716, from memory).
+TALL_EM = 0.74
+SHORT_EM = 0.56
+# Ink width / height, same source: digits 0.60-0.73 (median 0.66), x-height letters 0.57-1.42
+# (median 0.82). A line whose glyphs all share one height reads as digits/capitals below this.
+TALL_ASPECT = 0.75
+MERGED_ADVANCE = 0.86  # a digit's advance (0.636 em) over its height (0.74 em), same source
+
+ORIENTATIONS = (0, 90, -90)  # horizontal; reading bottom to top; reading top to bottom
+
+
+@dataclass(frozen=True)
+class GlyphLine:
+    """One line of text found from its glyphs.
+
+    bbox: figure pixels. angle: 0 horizontal, 90 reads bottom to top, -90 top to bottom.
+    glyphs: connected components in the line; a word of merged letters counts its letters
+    at one per 0.86 of its height (a DejaVu digit's advance over its height).
+    cap_px / x_px: ink height of the tall glyphs / of the short lower-case ones (None when
+    the line has none of that kind). em_px: font size in pixels from whichever is known.
+    stroke_px: the widest stroke seen (the cores that show the ink's full colour).
+    ink / background: sRGB 0..1 of the stroke cores and of the surround outside the ink.
+    """
+
+    bbox: BBox
+    angle: int
+    glyphs: int
+    cap_px: float | None
+    x_px: float | None
+    em_px: float
+    stroke_px: float
+    dark: bool
+    ink: RGB
+    background: RGB
+
+
+@dataclass
+class _Components:
+    """Glyph-sized components of one polarity, as parallel arrays."""
+
+    labels: np.ndarray  # the label image of that polarity
+    ids: np.ndarray  # component label
+    x0: np.ndarray
+    y0: np.ndarray
+    x1: np.ndarray  # exclusive
+    y1: np.ndarray
+    stroke: np.ndarray  # widest stroke, px
+    area: np.ndarray  # ink pixels
+    contrast: np.ndarray  # uint8 contrast image of that polarity
+    dark: bool
+    max_height: float  # tallest glyph taken for text, px
+
+
+def local_background(grey: np.ndarray) -> np.ndarray:
+    """Median grey over BACKGROUND_STEP * BACKGROUND_WINDOW px windows, full resolution."""
+    height, width = grey.shape
+    samples = np.ascontiguousarray(grey[::BACKGROUND_STEP, ::BACKGROUND_STEP])
+    window = min(BACKGROUND_WINDOW, 2 * (min(samples.shape) // 2) - 1)
+    if window >= 3:
+        samples = cv2.medianBlur(samples, window)
+    return cv2.resize(samples, (width, height), interpolation=cv2.INTER_LINEAR)
+
+
+def _depth(mask: np.ndarray, steps: int = TOPHAT_PX // 2 + 1) -> np.ndarray:
+    """Chessboard distance of each ink pixel from the nearest non-ink pixel (1 on an edge),
+    counted by repeated 3x3 erosions up to steps (strokes wider than the top-hat are gone)."""
+    depth = mask.copy()
+    eroded = mask
+    for _ in range(steps - 1):
+        eroded = cv2.erode(eroded, None)
+        if not eroded.any():
+            break
+        depth += eroded
+    return depth
+
+
+def _components(contrast: np.ndarray, thin_contrast: np.ndarray, dark: bool, max_height: float) -> _Components:
+    """Glyph candidates of one polarity. contrast: difference from the local background;
+    thin_contrast: the top-hat (difference from the background with thin features removed),
+    which keeps bars, cells and wedges (wider than any stroke) out of the ink."""
+    half_peak = cv2.dilate(contrast, np.ones((5, 5), np.uint8)) >> 1
+    ink = (cv2.min(contrast, thin_contrast) >= MIN_CONTRAST) & (contrast >= half_peak)
+    mask = ink.view(np.uint8)
+    points = cv2.findNonZero(mask) if cv2.countNonZero(mask) >= 4 else None
+    if points is None:
+        labels = np.zeros(mask.shape, dtype=np.int32)
+        empty = np.zeros(0, dtype=np.int64)
+        return _Components(labels, empty, empty, empty, empty, empty, empty.astype(float), empty, contrast, dark,
+                           max_height)
+    count, labels = cv2.connectedComponents(mask, connectivity=8)
+    points = points.reshape(-1, 2)
+    xs, ys = points[:, 0], points[:, 1]
+    member = labels[ys, xs]
+    area = np.bincount(member, minlength=count)
+    x0 = np.full(count, mask.shape[0] + mask.shape[1], dtype=np.int32)
+    y0 = x0.copy()
+    x1 = np.zeros(count, dtype=np.int32)
+    y1 = x1.copy()
+    np.minimum.at(x0, member, xs)
+    np.minimum.at(y0, member, ys)
+    np.maximum.at(x1, member, xs + 1)
+    np.maximum.at(y1, member, ys + 1)
+    # Stroke widths are read on all of the contrast, top-hat or not: a filled marker that the
+    # top-hat hollows to a ring is still thick there.
+    widest = np.zeros(count, dtype=np.uint8)
+    np.maximum.at(widest, member, _depth((contrast >= MIN_CONTRAST).view(np.uint8))[ys, xs])
+    strongest = np.zeros(count, dtype=np.uint8)
+    np.maximum.at(strongest, member, contrast[ys, xs])
+    w, h = x1 - x0, y1 - y0
+    stroke = 2.0 * widest.astype(float) - 1.0
+    chosen = (h >= MIN_GLYPH_PX) & (h <= max_height) & (w <= 12 * h) & (area >= 4) \
+        & (stroke <= np.maximum(1.0, STROKE_SHARE * h)) & (strongest >= 2 * MIN_CONTRAST)
+    chosen[0] = False
+    return _Components(labels, np.flatnonzero(chosen), x0[chosen], y0[chosen], x1[chosen], y1[chosen],
+                       stroke[chosen], area[chosen], contrast, dark, max_height)
+
+
+def _frame(parts: _Components, angle: int) -> tuple[np.ndarray, ...]:
+    """(along0, along1, top, bottom): extents along and across the reading direction, with
+    bottom > top and the baseline at bottom, for text at angle."""
+    if angle == 0:
+        return parts.x0, parts.x1, parts.y0, parts.y1
+    if angle == 90:  # reads upwards: glyph tops point left, baseline on the right
+        return -parts.y1, -parts.y0, parts.x0, parts.x1
+    return parts.y0, parts.y1, -parts.x1, -parts.x0
+
+
+def _link(along0, along1, top, bottom, candidates: np.ndarray) -> np.ndarray:
+    """Group labels of candidates (indices) linked into lines in one frame."""
+    n = len(candidates)
+    if n == 0:
+        return np.zeros(0, dtype=np.int64)
+    a0, a1, t, b = along0[candidates], along1[candidates], top[candidates], bottom[candidates]
+    h = (b - t).astype(np.float64)
+    order = np.argsort(a0, kind="stable")
+    a0s = a0[order]
+    reach = a1 + GAP_SHARE * h  # farthest start of a neighbour to the right
+    stop = np.searchsorted(a0s, reach, side="right")
+    position = np.empty(n, dtype=np.int64)
+    position[order] = np.arange(n)
+    starts = position + 1
+    counts = np.maximum(stop - starts, 0)
+    first = np.repeat(np.arange(n), counts)
+    offsets = np.arange(counts.sum()) - np.repeat(np.cumsum(counts) - counts, counts)
+    second = order[np.repeat(starts, counts) + offsets]
+    i, j = first, second
+    tall = np.maximum(h[i], h[j])
+    short = np.minimum(h[i], h[j])
+    tolerance = np.maximum(1.0, ALIGN_SHARE * tall)
+    aligned = (np.abs(b[i] - b[j]) <= tolerance) | (np.abs(t[i] - t[j]) <= tolerance)
+    overlap = np.minimum(b[i], b[j]) - np.maximum(t[i], t[j]) >= 0.5 * short
+    gap = np.maximum(a0[j] - a1[i], a0[i] - a1[j])
+    near = (gap <= GAP_SHARE * tall) & (gap >= -0.3 * short)
+    linked = aligned & overlap & near & (tall <= HEIGHT_RATIO * short)
+    return _union_find(n, i[linked], j[linked])
+
+
+def _union_find(n: int, first: np.ndarray, second: np.ndarray) -> np.ndarray:
+    """Group label of each of n nodes joined by the edges (first[k], second[k])."""
+    parent = list(range(n))
+
+    def root(node: int) -> int:
+        while parent[node] != node:
+            parent[node] = parent[parent[node]]
+            node = parent[node]
+        return node
+
+    for a, b in zip(first.tolist(), second.tolist()):
+        ra, rb = root(a), root(b)
+        if ra != rb:
+            parent[max(ra, rb)] = min(ra, rb)
+    return np.array([root(node) for node in range(n)], dtype=np.int64)
+
+
+def _repeated_marks(parts: _Components, members: np.ndarray) -> bool:
+    """Every member the same shape: a row of markers, dashes or grid crossings, not letters.
+    Same-sized boxes are compared pixel by pixel (intersection over union of the ink). Two
+    alike glyphs with a mark low between them are a decimal number ('0.0'), not marks."""
+    width, height = parts.x1[members] - parts.x0[members], parts.y1[members] - parts.y0[members]
+    if np.ptp(width) > 1 or np.ptp(height) > 1:
+        return False
+    w, h = int(width.min()), int(height.min())
+
+    def ink(k: int) -> np.ndarray:
+        x0, y0 = parts.x0[k], parts.y0[k]
+        return parts.labels[y0:y0 + h, x0:x0 + w] == parts.ids[k]
+
+    first = ink(int(members[0]))
+    for k in members[1:]:
+        other = ink(int(k))
+        if np.count_nonzero(first & other) < 0.8 * np.count_nonzero(first | other):
+            return False
+    if len(members) == 2:
+        left, right = sorted(members.tolist(), key=lambda k: parts.x0[k])
+        gap = parts.labels[parts.y1[left] - max(1, h // 4):parts.y1[left], parts.x1[left]:parts.x0[right]]
+        if gap.size and gap.any():
+            return False
+    return True
+
+
+def _merged_word(parts: _Components, index: int) -> bool:
+    """A single horizontal component that is a word of merged letters (small text): wide, and
+    crossed along its middle row by three strokes or more, about one per letter width (a
+    curve or line segment is crossed once). Rotated text is only taken as separate glyphs."""
+    x0, y0, x1, y1 = parts.x0[index], parts.y0[index], parts.x1[index], parts.y1[index]
+    if x1 - x0 < 1.5 * (y1 - y0):
+        return False
+    middle = parts.labels[(y0 + y1) // 2, x0:x1] == parts.ids[index]
+    runs = int(np.count_nonzero(np.diff(middle.astype(np.int8)) == 1) + middle[0])
+    return runs >= max(3.0, 0.8 * (x1 - x0) / (y1 - y0))
+
+
+def _heights(top: np.ndarray, bottom: np.ndarray, aspect: np.ndarray) -> tuple[float | None, float | None]:
+    """(cap height, x-height) of a line from its glyphs' extents (frame coordinates)."""
+    height = bottom - top
+    tallest = float(height.max())
+    tolerance = max(1.0, ALIGN_SHARE * tallest)
+    baseline = float(np.median(bottom))
+    resting = np.abs(bottom - baseline) <= tolerance  # not descenders (g, p, y) nor raised marks
+    if not resting.any():
+        resting = np.ones(len(height), dtype=bool)
+    rest_heights = height[resting]
+    upper = rest_heights >= rest_heights.max() - tolerance
+    lower = rest_heights <= 0.85 * rest_heights.max()
+    if lower.any():
+        return float(np.median(rest_heights[upper])), float(np.median(rest_heights[lower]))
+    if float(np.median(aspect[resting])) <= TALL_ASPECT:
+        return float(np.median(rest_heights)), None
+    return None, float(np.median(rest_heights))
+
+
+def _modal(samples: np.ndarray) -> np.ndarray:
+    """The mean colour of the most common 8-level bin: robust to JPEG noise and to blends."""
+    q = (samples >> 3).astype(np.int32)
+    bins = (q[:, 0] << 10) | (q[:, 1] << 5) | q[:, 2]
+    return samples[bins == np.bincount(bins).argmax()].mean(axis=0) / 255.0
+
+
+def _colours(rgb: np.ndarray, parts: _Components, members: np.ndarray, box: tuple[int, int, int, int],
+             pad: int) -> tuple[np.ndarray, np.ndarray] | None:
+    """(ink, background) sRGB 0..1 of a line, or None when its surround has no single
+    background colour (text over cells, markers or a picture: no contrast to speak of, and
+    marks there that look like glyphs are mostly not text)."""
+    height, width = rgb.shape[:2]
+    x0, y0, x1, y1 = box
+    X0, Y0, X1, Y1 = max(0, x0 - pad), max(0, y0 - pad), min(width, x1 + pad), min(height, y1 + pad)
+    labels = parts.labels[Y0:Y1, X0:X1]
+    ink_mask = np.isin(labels, parts.ids[members])
+    near_ink = cv2.dilate((labels > 0).view(np.uint8), np.ones((3, 3), np.uint8)).astype(bool)
+    patch = rgb[Y0:Y1, X0:X1]
+    surround = patch[~near_ink]
+    if len(surround) < 8 or not ink_mask.any():
+        return None
+    background = _modal(surround)
+    alike = np.abs(patch.astype(np.int16) - np.round(background * 255).astype(np.int16)).max(axis=2) \
+        <= BACKGROUND_TOLERANCE
+    inner = np.zeros(near_ink.shape, dtype=bool)
+    inner[y0 - Y0:y1 - Y0, x0 - X0:x1 - X0] = True
+    # Between letters and inside their counters lies the background itself; the inside
+    # of a ring of markers or the cells under marks is some other colour.
+    for region, share in ((~near_ink, UNIFORM_SHARE), (inner & ~near_ink, INNER_UNIFORM_SHARE)):
+        if np.count_nonzero(alike & region) < share * np.count_nonzero(region):
+            return None
+    # Strokes are thin, so all of a glyph's contrast is in its thin ink; marks wider than the
+    # top-hat (filled markers hollowed to rings, cell fills) leave contrast off the thin ink.
+    solid = inner & ~near_ink & (parts.contrast[Y0:Y1, X0:X1] >= MIN_CONTRAST)
+    if np.count_nonzero(solid) > 0.25 * np.count_nonzero(ink_mask):
+        return None
+    contrast = parts.contrast[Y0:Y1, X0:X1][ink_mask]
+    cores = patch[ink_mask][contrast >= 0.9 * np.quantile(contrast, 0.95)]
+    return np.median(cores, axis=0) / 255.0, background
+
+
+def find_text_lines(rgb: np.ndarray) -> list[GlyphLine]:
+    """Text lines of an RGB uint8 figure (see the module docstring), in no particular order."""
+    grey = cv2.cvtColor(np.ascontiguousarray(rgb), cv2.COLOR_RGB2GRAY)
+    background = local_background(grey)
+    max_height = max(MIN_MAX_GLYPH_PX, MAX_GLYPH_SHARE * min(grey.shape))
+    lines: list[GlyphLine] = []
+    kernel = np.ones((TOPHAT_PX, TOPHAT_PX), np.uint8)
+    for dark in (True, False):
+        contrast = cv2.subtract(background, grey) if dark else cv2.subtract(grey, background)
+        thin = cv2.morphologyEx(grey, cv2.MORPH_BLACKHAT if dark else cv2.MORPH_TOPHAT, kernel)
+        parts = _components(contrast, thin, dark, max_height)
+        free = np.ones(len(parts.ids), dtype=bool)
+        for angle in ORIENTATIONS:
+            along0, along1, top, bottom = _frame(parts, angle)
+            candidates = np.flatnonzero(free)
+            groups = _link(along0, along1, top, bottom, candidates)
+            sizes = np.bincount(groups, minlength=len(candidates))
+            wide = (along1 - along0)[candidates] >= 1.5 * (bottom - top)[candidates]
+            # Single components can only be merged words, which are wide and horizontal.
+            worth = (sizes[groups] > 1) | (wide & (angle == 0))
+            for group in np.unique(groups[worth]):
+                members = candidates[groups == group]
+                line = _line(rgb, parts, members, angle, along0, along1, top, bottom)
+                if line is not None:
+                    lines.append(line)
+                    free[members] = False
+        along0, along1, top, bottom = _frame(parts, 0)
+        for members in _tick_label_rows(parts, np.flatnonzero(free)):
+            line = _line(rgb, parts, members, 0, along0, along1, top, bottom, labels_apart=True)
+            if line is not None:
+                lines.append(line)
+    return lines
+
+
+def _tick_label_rows(parts: _Components, free: np.ndarray) -> list[np.ndarray]:
+    """Single-glyph labels (tick labels '0', '2', '4'...) that no word holds: three or more
+    glyphs of one height, bottom-aligned in a row or right-aligned in a column, at regular
+    steps of two heights or more. Rows of one repeated shape are marks (see _repeated_marks)."""
+    width, height = parts.x1[free] - parts.x0[free], parts.y1[free] - parts.y0[free]
+    single = free[(width <= 1.2 * height) & (width >= 0.3 * height)]
+    found = []
+    for edge, centre in ((parts.y1, (parts.x0 + parts.x1) / 2.0), (parts.x1, (parts.y0 + parts.y1) / 2.0)):
+        order = single[np.lexsort((centre[single], edge[single]))]
+        breaks = np.flatnonzero(np.diff(edge[order]) > 1) + 1
+        for run in np.split(order, breaks):
+            if len(run) < 3:
+                continue
+            run_height = parts.y1[run] - parts.y0[run]
+            run = run[np.abs(run_height - np.median(run_height)) <= max(1.0, ALIGN_SHARE * np.median(run_height))]
+            if len(run) < 3:
+                continue
+            run = run[np.argsort(centre[run])]
+            steps = np.diff(centre[run])
+            tall = float((parts.y1[run] - parts.y0[run]).max())
+            if steps.min() >= 2 * tall and np.ptp(steps) <= 0.1 * np.median(steps):
+                found.append(run)
+    return found
+
+
+def _line(rgb, parts: _Components, members: np.ndarray, angle: int, along0, along1, top, bottom,
+          labels_apart: bool = False) -> GlyphLine | None:
+    """The line of members (component indices) in the frame of angle, or None when it is not
+    text. labels_apart: the members are separate single-glyph labels (_tick_label_rows)."""
+    length = (along1 - along0)[members]
+    height = (bottom - top)[members]
+    if height.max() > parts.max_height:  # rotated: a glyph's height is its width on the page
+        return None
+    if len(members) == 1:
+        if angle != 0 or not _merged_word(parts, int(members[0])):
+            return None
+    elif _repeated_marks(parts, members):
+        return None
+    if labels_apart:
+        members = members[np.argsort(along0[members])]
+    cap, x = _heights(top[members].astype(float), bottom[members].astype(float), length / height)
+    count = len(members)
+    if count == 1:  # merged letters: the word's full height, read as capitals/digits
+        cap, x = float(height[0]), None
+        count = max(2, int(round(float(length[0]) / (MERGED_ADVANCE * float(height[0])))))
+    em = cap / TALL_EM if cap is not None else x / SHORT_EM
+    box = (int(parts.x0[members].min()), int(parts.y0[members].min()),
+           int(parts.x1[members].max()), int(parts.y1[members].max()))
+    colours = _colours(rgb, parts, members, box, pad=max(2, int(round(0.3 * em))))
+    if colours is None:
+        return None
+    ink, background = colours
+    return GlyphLine(bbox=tuple(float(v) for v in box), angle=angle, glyphs=count, cap_px=cap, x_px=x,
+                     em_px=float(em), stroke_px=float(parts.stroke[members].max()), dark=parts.dark,
+                     ink=tuple(float(v) for v in ink), background=tuple(float(v) for v in background))
