@@ -2,6 +2,6 @@
 
 from corpusaudit.checks import quality  # noqa: F401
 from corpusaudit.checks import bar, box, line, pie, scatter  # noqa: F401,E402
-from corpusaudit.checks import colour, text  # noqa: F401,E402
+from corpusaudit.checks import colour, legend, text  # noqa: F401,E402
 
-FAMILY_MODULES = ("quality", "bar", "box", "line", "pie", "scatter", "colour", "text")
+FAMILY_MODULES = ("quality", "bar", "box", "line", "legend", "pie", "scatter", "colour", "text")

@@ -51,4 +51,4 @@ class Measurements:
         self._values[name] = value
         return value
 from corpusaudit.measure import axes, bars, boxes, depth, legend, lines, pie, scatter, shapes, text  # noqa: E402,F401
-from corpusaudit.measure import appearance  # noqa: E402,F401
+from corpusaudit.measure import appearance, keys  # noqa: E402,F401
