@@ -19,7 +19,7 @@ import pymupdf
 
 from corpusaudit import __version__
 from corpusaudit.checks.runner import check_figure
-from corpusaudit.classify import Classifier, load_classifier
+from corpusaudit.classify import Classifier, ModelIntegrityError, load_classifier
 from corpusaudit.config import Config
 from corpusaudit.discover import clear_scratch, discover
 from corpusaudit.extract import ExtractError, extract_document
@@ -114,7 +114,7 @@ def _vector_pie(figure: Figure, measurements: Measurements) -> bool:
 
 @functools.cache
 def _classifier() -> Classifier | None:
-    """The shipped model, loaded once per worker process."""
+    """The shipped model, loaded once per process (the pool loads it before forking its workers)."""
     return load_classifier()
 
 
@@ -302,6 +302,10 @@ def _results(docs: list[Document], config: Config, options: RunOptions,
     def note_peak(rss: int) -> None:
         summary.peak_worker_rss = max(summary.peak_worker_rss, rss)
 
+    try:  # loaded once here, workers forked from this process share it (about 1 s each otherwise)
+        _classifier()
+    except ModelIntegrityError:
+        pass  # each worker meets the same error and records it on its documents
     tasks, expected = [], {}
     for doc in docs:
         ranges = page_ranges(doc, options.chunk_pages)

@@ -6,6 +6,8 @@ read it before they fall back to pixels.
 
 from __future__ import annotations
 
+import contextlib
+import gc
 import math
 
 import numpy as np
@@ -112,8 +114,27 @@ def _box(rect, matrix: pymupdf.Matrix) -> tuple[float, float, float, float]:
     return (min(xs), min(ys), max(xs), max(ys))
 
 
+@contextlib.contextmanager
+def _collector_paused():
+    """Pause the cycle collector while a page's paths are built: hundreds of thousands of
+    vertex tuples (no cycles among them) would otherwise trigger full collections over and
+    over, which cost as much as building them."""
+    was_enabled = gc.isenabled()
+    gc.disable()
+    try:
+        yield
+    finally:
+        if was_enabled:
+            gc.enable()
+
+
 def path_items(drawings: list[dict], matrix: pymupdf.Matrix, scale: float) -> list[PathItem]:
     """PyMuPDF drawings (page points) as PathItems in figure pixels (matrix from figure_matrix)."""
+    with _collector_paused():
+        return _path_items(drawings, matrix, scale)
+
+
+def _path_items(drawings: list[dict], matrix: pymupdf.Matrix, scale: float) -> list[PathItem]:
     inked = [d for d in drawings if d.get("type") in ("f", "s", "fs")]  # clip paths and groups carry no ink
     paths: list[PathItem] = []
     for drawing, points in zip(inked, _all_path_points(inked, matrix)):
