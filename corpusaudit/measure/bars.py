@@ -20,6 +20,9 @@ from corpusaudit.measure.shapes import (
 from corpusaudit.model import BBox, Figure, MeasurementUnavailable
 
 
+RASTER_TOUCH = 4  # pixels: raster rectangles this close (a separator line, antialiasing) touch
+
+
 @dataclass(frozen=True)
 class Bar:
     bbox: BBox  # clipped to the plot area, figure pixels
@@ -80,6 +83,9 @@ def _raster_rects(rgb: np.ndarray, plot: BBox) -> list[Bar]:
     for colour in extract_palette(np.ascontiguousarray(inner), max_colours=12, min_share=0.01):
         rgb255 = np.asarray(colour.rgb) * 255.0
         mask = (colour_distance(inner, rgb255) < 28).astype(np.uint8)
+        # Grid lines drawn over the bars and separator lines cut a bar into pieces: closing
+        # bridges cuts up to RASTER_TOUCH pixels wide; opening then drops text and thin lines.
+        mask = cv2.morphologyEx(mask, cv2.MORPH_CLOSE, np.ones((RASTER_TOUCH + 1, RASTER_TOUCH + 1), np.uint8))
         mask = cv2.morphologyEx(mask, cv2.MORPH_OPEN, np.ones((4, 4), np.uint8))
         _, stats, _ = component_stats(mask, min_area=12)
         for _, bx, by, bw, bh, area in stats:
@@ -112,10 +118,10 @@ def _separable(intervals: list[tuple[float, float]], tolerance: float) -> bool:
     return True
 
 
-def _orientation(bars: list[Bar]) -> str | None:
+def _orientation(bars: list[Bar], touch: float) -> str | None:
     xs = [(b.bbox[0], b.bbox[2]) for b in bars]
     ys = [(b.bbox[1], b.bbox[3]) for b in bars]
-    vertical, horizontal = _separable(xs, 1.5), _separable(ys, 1.5)
+    vertical, horizontal = _separable(xs, touch), _separable(ys, touch)
     if vertical and not horizontal:
         return "vertical"
     if horizontal and not vertical:
@@ -127,11 +133,15 @@ def _orientation(bars: list[Bar]) -> str | None:
     return "vertical" if np.std(heights) / np.mean(heights) >= np.std(widths) / np.mean(widths) else "horizontal"
 
 
-def bar_chart_from_rects(bars: list[Bar], plot: BBox) -> BarChart:
-    """Group rectangles into stacks along the category axis and find the baseline."""
+def bar_chart_from_rects(bars: list[Bar], plot: BBox, touch: float = 1.5) -> BarChart:
+    """Group rectangles into stacks along the category axis and find the baseline.
+
+    touch: how far apart (pixels) two edges may be and still count as one edge; exact for
+    vector rectangles, a few pixels for raster ones (antialiasing, separator lines).
+    """
     if len(bars) < 2:
         raise MeasurementUnavailable("fewer than two bars found")
-    orientation = _orientation(bars)
+    orientation = _orientation(bars, touch)
     if orientation is None:
         raise MeasurementUnavailable("rectangles do not form bars side by side")
     vertical = orientation == "vertical"
@@ -139,27 +149,27 @@ def bar_chart_from_rects(bars: list[Bar], plot: BBox) -> BarChart:
     along = (lambda b: (b.bbox[1], b.bbox[3])) if vertical else (lambda b: (b.bbox[0], b.bbox[2]))
     groups: list[list[Bar]] = []
     for bar in sorted(bars, key=lambda b: across(b)[0]):
-        if groups and abs(across(groups[-1][0])[0] - across(bar)[0]) <= 1.5 and abs(across(groups[-1][0])[1] - across(bar)[1]) <= 1.5:
+        if groups and abs(across(groups[-1][0])[0] - across(bar)[0]) <= touch and abs(across(groups[-1][0])[1] - across(bar)[1]) <= touch:
             groups[-1].append(bar)
         else:
             groups.append([bar])
     # Each stack contributes its two ends once (inner segment boundaries would outvote the base).
     ends = np.round(np.array([v for g in groups for v in (min(along(b)[0] for b in g), max(along(b)[1] for b in g))]))
-    values, counts = np.unique(ends, return_counts=True)
-    baseline = float(values[np.argmax(counts)])
+    counts = np.array([(np.abs(ends - end) <= max(0.5, touch / 2)).sum() for end in ends])
+    baseline = float(np.median(ends[np.abs(ends - ends[np.argmax(counts)]) <= max(0.5, touch / 2)]))
     if counts.max() < 0.5 * len(groups):
         raise MeasurementUnavailable("bars share no baseline")
     stacks = []
     for group in groups:
         lo = min(along(b)[0] for b in group)
         hi = max(along(b)[1] for b in group)
-        if min(abs(lo - baseline), abs(hi - baseline)) > 2.0:
+        if min(abs(lo - baseline), abs(hi - baseline)) > max(2.0, touch):
             continue  # floating rectangle: a legend swatch or an annotation, not a bar
         start, end = (lo, hi) if abs(lo - baseline) <= abs(hi - baseline) else (hi, lo)
         group = sorted(group, key=lambda b: abs(np.mean(along(b)) - baseline))
         contiguous = [group[0]]
         for bar in group[1:]:  # segments must touch the one before: a stack, not an overlay
-            if min(abs(along(bar)[0] - along(contiguous[-1])[1]), abs(along(bar)[1] - along(contiguous[-1])[0])) <= 1.5:
+            if min(abs(along(bar)[0] - along(contiguous[-1])[1]), abs(along(bar)[1] - along(contiguous[-1])[0])) <= touch:
                 contiguous.append(bar)
         a0, a1 = across(group[0])
         box = (a0, min(lo, hi), a1, max(lo, hi)) if vertical else (min(lo, hi), a0, max(lo, hi), a1)
@@ -192,5 +202,5 @@ def bars(figure: Figure, measurements) -> BarChart:
     if is_vector(figure):
         rects = _vector_rects(figure, plot, measurements.get("legend_boxes"))
     else:
-        rects = _raster_rects(require_pixels(figure), plot)
+        return bar_chart_from_rects(_raster_rects(require_pixels(figure), plot), plot, touch=RASTER_TOUCH)
     return bar_chart_from_rects(rects, plot)

@@ -1,15 +1,17 @@
-"""Pie geometry: centre, radius, slices (start angle, angular span, share, colour) and the
-percentages printed on or beside the slices.
+"""Pie geometry: centre, radius, donut hole, slices (start angle, angular span, share,
+colour), the percentages printed on or beside the slices and what they add up to.
 
-Vector: wedges are closed filled paths whose outer arc lies on one circle; each slice's
-span is the arc it covers (360 degrees minus the largest gap between its arc points).
-Raster: the pie is the largest round foreground region; slices are runs of one colour
-along three circles inside the pie (their per-angle majority ignores labels printed on
-the slices).
-"""
+Vector: wedges are closed filled paths whose outer arcs lie on one circle (fitted by least
+squares to the rim points); each slice's span is the arc it covers (360 degrees minus the
+largest gap between its arc points).
+Raster: the pie is the largest round foreground region; slices are runs of one colour going
+round it, voted by 16 rings across its outer part (or a donut's band), so that labels,
+antialiasing, JPEG noise and thin separator lines do not count as slices. Percentages are
+read by OCR from the label pixels only, in one page of stacked lines."""
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass
 
 import cv2
@@ -17,11 +19,12 @@ import numpy as np
 
 from corpusaudit.measure import measurement
 from corpusaudit.measure.legend import in_any
-from corpusaudit.measure.shapes import background_rgb, colour_key, component_stats, ink_mask, is_vector, require_pixels
-from corpusaudit.measure.text import merge_words_into_lines, ocr_words, parse_percentage
-from corpusaudit.model import BBox, Figure, MeasurementUnavailable
+from corpusaudit.measure.shapes import background_rgb, colour_distance, colour_key, component_stats, ink_mask, is_vector, require_pixels
+from corpusaudit.measure.text import ocr_words
+from corpusaudit.model import BBox, Figure, MeasurementUnavailable, TextSpan
 
 CLOSURE_TOLERANCE = 0.03  # slices must cover the full circle within 3 % to be a pie
+MIN_ARC_PX = 2.0  # raster: narrower colour runs along the rim are edges or antialiasing, not slices
 
 
 @dataclass(frozen=True)
@@ -44,6 +47,7 @@ class Pie:
     centre: tuple[float, float]
     radius: float
     slices: tuple[Slice, ...]  # in counter-clockwise order of their start angles
+    hole: float = 0.0  # radius of a donut's hole (0 for a full pie)
 
     @property
     def shares(self) -> list[float]:
@@ -68,27 +72,52 @@ def _arc_cover(angles: np.ndarray) -> tuple[float, float]:
     return float(start), float(360.0 - gaps[widest])
 
 
+def _fit_circle(points: np.ndarray) -> tuple[tuple[float, float], float]:
+    """Least-squares circle through points (the algebraic fit of Kasa, 1976)."""
+    x, y = points[:, 0], points[:, 1]
+    design = np.column_stack([x, y, np.ones_like(x)])
+    (a, b, c), *_ = np.linalg.lstsq(design, x * x + y * y, rcond=None)
+    cx, cy = a / 2.0, b / 2.0
+    return (float(cx), float(cy)), float(np.sqrt(max(c + cx * cx + cy * cy, 0.0)))
+
+
+def _rim_circle(points: np.ndarray) -> tuple[tuple[float, float], float]:
+    """The circle of the wedges' outer arcs, ignoring the apices and a donut's inner arcs.
+
+    Starts from the bounding square and refits on the points near the current rim, so that
+    a thin slice or a label-sized bump of the outline does not move the centre.
+    """
+    x0, y0 = points.min(axis=0)
+    x1, y1 = points.max(axis=0)
+    if abs((x1 - x0) - (y1 - y0)) > 0.06 * max(x1 - x0, y1 - y0):
+        raise MeasurementUnavailable("wedges do not form a round pie (exploded, tilted or mixed shapes)")
+    centre, radius = ((x0 + x1) / 2.0, (y0 + y1) / 2.0), ((x1 - x0) + (y1 - y0)) / 4.0
+    for tolerance in (0.1, 0.03, 0.01):
+        distance = np.hypot(points[:, 0] - centre[0], points[:, 1] - centre[1])
+        rim = points[np.abs(distance - radius) <= tolerance * radius]
+        if len(rim) < 6:
+            raise MeasurementUnavailable("no round pie rim found")
+        centre, radius = _fit_circle(rim)
+    distance = np.hypot(rim[:, 0] - centre[0], rim[:, 1] - centre[1])
+    if np.abs(distance - radius).max() > 0.01 * radius:
+        raise MeasurementUnavailable("wedge arcs do not lie on one circle (exploded or tilted pie)")
+    return centre, radius
+
+
 def _vector_pie(figure: Figure, frames: list[BBox]) -> Pie:
     candidates = [p for p in figure.vector.paths
                   if "f" in p.kind and not p.is_rect and len(p.points) >= 6 and p.fill is not None
                   and not in_any(p.bbox, frames)]
     if len(candidates) < 2:
         raise MeasurementUnavailable("no pie wedges found")
-    # The largest curved group fixes the pie: its union box is the circle's bounding square.
-    boxes = np.array([p.bbox for p in candidates])
-    x0, y0 = boxes[:, 0].min(), boxes[:, 1].min()
-    x1, y1 = boxes[:, 2].max(), boxes[:, 3].max()
-    if abs((x1 - x0) - (y1 - y0)) > 0.04 * max(x1 - x0, y1 - y0):
-        raise MeasurementUnavailable("wedges do not form a round pie (exploded, tilted or mixed shapes)")
-    centre = ((x0 + x1) / 2.0, (y0 + y1) / 2.0)
-    radius = ((x1 - x0) + (y1 - y0)) / 4.0
+    centre, radius = _rim_circle(np.concatenate([np.asarray(p.points) for p in candidates]))
     slices = []
     for path in candidates:
         points = np.asarray(path.points)
         distance = np.hypot(points[:, 0] - centre[0], points[:, 1] - centre[1])
         if distance.max() > 1.03 * radius:
-            raise MeasurementUnavailable("a shape reaches beyond the pie's circle")
-        arc = points[distance >= 0.97 * radius]
+            raise MeasurementUnavailable("a shape reaches beyond the pie's circle (exploded, tilted or mixed shapes)")
+        arc = points[np.abs(distance - radius) <= 0.01 * radius]
         if len(arc) < 2:
             continue
         start, span = _arc_cover(_angles(arc, centre))
@@ -100,8 +129,8 @@ def _vector_pie(figure: Figure, frames: list[BBox]) -> Pie:
     return Pie(centre=centre, radius=radius, slices=tuple(sorted(slices, key=lambda s: s.start)))
 
 
-def _raster_circle(rgb: np.ndarray) -> tuple[tuple[float, float], float]:
-    background = background_rgb(rgb)
+def _raster_circle(rgb: np.ndarray, background: np.ndarray) -> tuple[tuple[float, float], float]:
+    """Centre and radius of the pie: the largest solid, round foreground region."""
     ink = ink_mask(rgb, background, threshold=30.0).astype(np.uint8)
     solid = cv2.morphologyEx(ink, cv2.MORPH_OPEN, np.ones((5, 5), np.uint8))
     solid = cv2.morphologyEx(solid, cv2.MORPH_CLOSE, np.ones((5, 5), np.uint8))
@@ -117,48 +146,110 @@ def _raster_circle(rgb: np.ndarray) -> tuple[tuple[float, float], float]:
     if min(major, minor) < 0.93 * max(major, minor):
         raise MeasurementUnavailable("the pie is not round (tilted or squeezed)")
     centre, radius = (float(ex), float(ey)), (major + minor) / 4.0
-    height, width = ink.shape
-    theta = np.radians(np.arange(0, 360, 1.0))
-    for fraction, low, high in ((0.88, 0.97, 1.01), (1.1, 0.0, 0.6)):
-        xs = np.clip(np.round(centre[0] + fraction * radius * np.cos(theta)).astype(int), 0, width - 1)
-        ys = np.clip(np.round(centre[1] - fraction * radius * np.sin(theta)).astype(int), 0, height - 1)
-        coverage = ink[ys, xs].mean()
+    # Inside the rim the ring is (nearly) all ink: thin separator lines between slices leave
+    # a few per cent; outside it, at most scattered labels.
+    for fraction, low, high in ((0.9, 0.9, 1.01), (1.12, 0.0, 0.6)):
+        coverage = _ring(ink, centre, fraction * radius, 720).mean()
         if not low <= coverage <= high:
             raise MeasurementUnavailable("no round pie found")
     return centre, radius
 
 
-def _raster_pie(rgb: np.ndarray) -> Pie:
-    centre, radius = _raster_circle(rgb)
-    steps = 720
+def _ring(image: np.ndarray, centre: tuple[float, float], radius: float, steps: int) -> np.ndarray:
+    """Samples of image along a circle, counter-clockwise from 3 o'clock (nearest pixel)."""
     theta = np.radians(np.arange(steps) * 360.0 / steps)
-    height, width = rgb.shape[:2]
-    rings = []
-    for fraction in (0.76, 0.84, 0.92):
-        xs = np.clip(np.round(centre[0] + fraction * radius * np.cos(theta)).astype(int), 0, width - 1)
-        ys = np.clip(np.round(centre[1] - fraction * radius * np.sin(theta)).astype(int), 0, height - 1)
-        rings.append(rgb[ys, xs].astype(np.float32))
-    samples = np.concatenate(rings)
-    centres: list[np.ndarray] = []  # greedy colour clusters, most common first
-    labels = np.full(len(samples), -1)
-    order = np.argsort(-np.bincount(_quantised(samples))[_quantised(samples)], kind="stable")
-    for index in order:
-        if labels[index] >= 0:
+    height, width = image.shape[:2]
+    xs = np.clip(np.round(centre[0] + radius * np.cos(theta)).astype(int), 0, width - 1)
+    ys = np.clip(np.round(centre[1] - radius * np.sin(theta)).astype(int), 0, height - 1)
+    return image[ys, xs]
+
+
+def _hole_radius(rgb: np.ndarray, background: np.ndarray, centre: tuple[float, float], radius: float) -> float:
+    """Radius of a donut's hole (0 for a full pie): how far out from the centre background reigns."""
+    hole = 0.0
+    for fraction in np.arange(0.02, 0.9, 0.02):
+        ring = _ring(rgb, centre, fraction * radius, 360)
+        if (colour_distance(ring, background) < 30).mean() < 0.9:
+            break
+        hole = float(fraction * radius)
+    return hole
+
+
+def _polar_samples(rgb: np.ndarray, centre: tuple[float, float], radii: np.ndarray, steps: int) -> np.ndarray:
+    """Colours (len(radii), steps, 3) on circles, angles counter-clockwise from 3 o'clock, bilinear."""
+    theta = np.arange(steps) * (2 * np.pi / steps)
+    map_x = (centre[0] + radii[:, None] * np.cos(theta)[None, :]).astype(np.float32)
+    map_y = (centre[1] - radii[:, None] * np.sin(theta)[None, :]).astype(np.float32)
+    return cv2.remap(rgb, map_x, map_y, cv2.INTER_LINEAR, borderMode=cv2.BORDER_REPLICATE).astype(np.float32)
+
+
+def _colour_clusters(samples: np.ndarray, radius: float = 30.0) -> tuple[np.ndarray, np.ndarray]:
+    """Greedy clusters of colours, most common first: (centres, label per sample).
+
+    Works on 4-bit-per-channel bins with their counts, so it costs little however many
+    samples there are; a bin joins the first (most common) cluster within radius.
+    """
+    keys = _quantised(samples)
+    unique, inverse, counts = np.unique(keys, return_inverse=True, return_counts=True)
+    sums = np.zeros((len(unique), 3))
+    np.add.at(sums, inverse, samples)
+    means = sums / counts[:, None]
+    bin_label = np.full(len(unique), -1)
+    centres = []
+    for index in np.argsort(-counts, kind="stable"):
+        if bin_label[index] >= 0:
             continue
-        colour = samples[index]
-        near = (np.sqrt(((samples - colour) ** 2).sum(axis=1)) < 30) & (labels < 0)
-        labels[near] = len(centres)
-        centres.append(samples[near].mean(axis=0))
-    per_ring = labels.reshape(3, steps)
-    majority = np.where(per_ring[1] == per_ring[2], per_ring[1], np.where(per_ring[0] == per_ring[2], per_ring[0], per_ring[1]))
-    runs = _runs(majority)
-    minimum = 3  # samples: 1.5 degrees; shorter runs are edges or antialiasing
-    long_runs = [r for r in runs if r[2] >= minimum]
-    if len(long_runs) < 1:
+        near = (np.sqrt(((means - means[index]) ** 2).sum(axis=1)) < radius) & (bin_label < 0)
+        bin_label[near] = len(centres)
+        weights = counts[near][:, None]
+        centres.append((means[near] * weights).sum(axis=0) / weights.sum())
+    return np.array(centres), bin_label[inverse]
+
+
+def _raster_pie(rgb: np.ndarray) -> Pie:
+    """Slices as runs of one colour going round the pie.
+
+    The pie is sampled on rings across its outer part (or across a donut's band); each angle
+    takes the colour most rings agree on, ignoring the background (white separator lines) and
+    rare mixed colours, so labels printed on a slice, antialiasing and JPEG noise do not vote.
+    A run must be at least MIN_ARC_PX wide along the outermost ring to count as a slice;
+    runs of one colour separated by a separator line are two slices.
+    """
+    background = background_rgb(rgb)
+    centre, radius = _raster_circle(rgb, background)
+    hole = _hole_radius(rgb, background, centre, radius)
+    inner = max(hole + 0.12 * (radius - hole), 0.45 * radius)
+    outer = radius - max(2.0, 0.03 * radius)
+    radii = np.linspace(inner, outer, 16)
+    steps = int(np.clip(np.ceil(2 * np.pi * outer / 0.5), 720, 4320))
+    samples = _polar_samples(rgb, centre, radii, steps)
+    flat = samples.reshape(-1, 3)
+    foreground = colour_distance(flat, background) >= 30
+    centres, labels = _colour_clusters(flat[foreground])
+    # Samples far from their cluster's centre are mixtures (edges): they do not vote.
+    pure = np.sqrt(((flat[foreground] - centres[labels]) ** 2).sum(axis=1)) < 30
+    per_sample = np.full(len(flat), -1)
+    per_sample[np.flatnonzero(foreground)[pure]] = labels[pure]
+    grid = per_sample.reshape(len(radii), steps)
+    rows = len(radii)
+    votes = np.stack([(grid == c).sum(axis=0) for c in range(len(centres))])
+    ranked = np.sort(votes, axis=0)
+    best, second = ranked[-1], ranked[-2] if len(centres) > 1 else np.zeros(steps)
+    winner = np.where((best >= 0.3 * rows) & (best >= 1.5 * second), np.argmax(votes, axis=0), -1)
+    min_columns = max(1, int(np.ceil(MIN_ARC_PX / (outer * 2 * np.pi / steps))))
+    long_runs = []
+    for run in _runs(winner):
+        start, label, length = run
+        columns = np.arange(start, start + length) % steps
+        # A slice fills the band: labels printed on it cover only part of the rings.
+        if label >= 0 and length >= min_columns and best[columns].mean() >= 0.4 * rows:
+            long_runs.append(run)
+    long_runs = _merge_interrupted(long_runs, votes, rows)
+    if not long_runs:
         raise MeasurementUnavailable("no slices found along the pie")
-    if len(long_runs) == 1 and long_runs[0][2] >= steps - minimum:
+    if len(long_runs) == 1 and long_runs[0][2] >= steps - 2 * min_columns:
         raise MeasurementUnavailable("one colour all round: a circle, not a pie")
-    # Boundaries sit halfway through the short runs between long ones.
+    # Boundaries sit halfway through whatever lies between two slices (separator, antialiasing).
     boundaries = []
     for current, following in zip(long_runs, long_runs[1:] + long_runs[:1]):
         end = current[0] + current[2]
@@ -166,12 +257,38 @@ def _raster_pie(rgb: np.ndarray) -> Pie:
         boundaries.append((end + gap / 2.0) % steps)
     slices = []
     for index, run in enumerate(long_runs):
-        start = boundaries[index - 1]
-        end = boundaries[index]
-        span = ((end - start) % steps) * 360.0 / steps
+        start, end = boundaries[index - 1], boundaries[index]
+        span = ((end - start) % steps or steps) * 360.0 / steps
         colour = tuple(int(round(v)) for v in centres[run[1]])
         slices.append(Slice(start=start * 360.0 / steps, span=span, colour=colour))
-    return Pie(centre=centre, radius=float(radius), slices=tuple(sorted(slices, key=lambda s: s.start)))
+    return Pie(centre=centre, radius=float(radius), slices=tuple(sorted(slices, key=lambda s: s.start)),
+               hole=hole)
+
+
+def _merge_interrupted(runs: list[tuple[int, int, int]], votes: np.ndarray, rows: int) -> list[tuple[int, int, int]]:
+    """Join runs of one colour interrupted by something other than a separator line.
+
+    A separator line is radial: at its angle the slice colour is missing from (nearly) every
+    ring. A label printed across the slice hides the colour on some rings only.
+    """
+    steps = votes.shape[1]
+    merged = list(runs)
+    index = 0
+    while len(merged) > 1 and index < len(merged):
+        current, following = merged[index], merged[(index + 1) % len(merged)]
+        end = current[0] + current[2]
+        between = np.arange(end, end + (following[0] - end) % steps) % steps
+        separated = len(between) > 0 and votes[current[1], between].min() <= 0.3 * rows
+        if current[1] == following[1] and not separated:
+            joined = (current[0], current[1], current[2] + len(between) + following[2])
+            if index + 1 < len(merged):
+                merged[index:index + 2] = [joined]
+            else:  # wrapped round: the last run continues into the first
+                merged = [joined] + merged[1:-1]
+                index = 0
+            continue
+        index += 1
+    return merged
 
 
 def _quantised(samples: np.ndarray) -> np.ndarray:
@@ -204,21 +321,160 @@ class Percentage:
     bbox: BBox
 
 
+_LUMA = np.array([0.299, 0.587, 0.114], np.float32)  # ITU-R BT.601 luma weights
+_PERCENTAGE = re.compile(r"(\d+(?:[.,]\d+)?)\s*%")
+
+
 @measurement("pie_percentages")
 def pie_percentages(figure: Figure, measurements) -> list[Percentage]:
-    """Percentages printed on or beside the slices (within 1.5 radii of the centre)."""
+    """Percentages printed on or beside the slices (within 1.5 radii of the centre).
+
+    Vector: the stated text. Raster: the text lines found by colour (pixels that are neither
+    a slice colour nor background), redrawn black on white and read by OCR in one call.
+    Two labels that touch ('7.9%15.5%') are both read.
+    """
     geometry = measurements.get("pie")
     cx, cy = geometry.centre
     reach = 1.5 * geometry.radius
-    if is_vector(figure):
-        spans = figure.vector.texts
-    else:
-        rgb = require_pixels(figure)
-        spans = merge_words_into_lines(ocr_words(rgb, (cx - reach, cy - reach, cx + reach, cy + reach), psm=11))
+    spans = figure.vector.texts if is_vector(figure) else _raster_label_lines(require_pixels(figure), geometry)
     found = []
     for span in spans:
-        value = parse_percentage(span.text)
         sx, sy = (span.bbox[0] + span.bbox[2]) / 2, (span.bbox[1] + span.bbox[3]) / 2
-        if value is not None and np.hypot(sx - cx, sy - cy) <= reach:
-            found.append(Percentage(value=value, bbox=span.bbox))
+        if np.hypot(sx - cx, sy - cy) > reach:
+            continue
+        for match in _PERCENTAGE.finditer(span.text):
+            found.append(Percentage(value=float(match.group(1).replace(",", ".")), bbox=span.bbox))
     return found
+
+
+@dataclass(frozen=True)
+class LabelTotal:
+    """What the slices' printed percentages add up to.
+
+    Slices without a readable percentage count with their drawn share, so a pie whose
+    labels are faithful totals 100 even when some labels cannot be read.
+    """
+
+    total: float  # percentage points
+    labelled: int  # slices whose own label was read
+    estimated: int  # slices counted by their drawn share
+    uncertainty: float  # points the estimate may be off by (drawn shares are measured)
+
+
+SHARE_UNCERTAINTY = 0.5  # points: error allowed for a slice counted by its drawn share
+
+
+@measurement("pie_label_total")
+def pie_label_total(figure: Figure, measurements) -> LabelTotal:
+    geometry = measurements.get("pie")
+    labels = measurements.get("pie_percentages")
+    if not labels:
+        raise MeasurementUnavailable("no percentage labels read")
+    if len(labels) == len(geometry.slices):
+        return LabelTotal(total=sum(p.value for p in labels), labelled=len(labels), estimated=0, uncertainty=0.0)
+    # Fewer labels than slices: each read label stands for the slice it sits on; two labels
+    # on one slice (or one off the pie) cannot be placed and that slice counts by its share.
+    owners = [_slice_at(geometry, label.bbox) for label in labels]
+    placed = {owner: label for owner, label in zip(owners, labels) if owner is not None and owners.count(owner) == 1}
+    if not placed:
+        raise MeasurementUnavailable(f"{len(labels)} percentages read for {len(geometry.slices)} slices, none placed")
+    missing = [piece for index, piece in enumerate(geometry.slices) if index not in placed]
+    return LabelTotal(total=sum(p.value for p in placed.values()) + 100.0 * sum(piece.share for piece in missing),
+                      labelled=len(placed), estimated=len(missing), uncertainty=SHARE_UNCERTAINTY * len(missing))
+
+
+def _slice_at(geometry: Pie, box: BBox) -> int | None:
+    """Index of the slice a label sits on or beside (by its angle from the centre)."""
+    cx, cy = geometry.centre
+    angle = float(np.degrees(np.arctan2(-((box[1] + box[3]) / 2 - cy), (box[0] + box[2]) / 2 - cx)) % 360.0)
+    for index, piece in enumerate(geometry.slices):
+        if (angle - piece.start) % 360.0 < piece.span:
+            return index
+    return None
+
+
+def _text_ink(rgb: np.ndarray, geometry: Pie) -> tuple[np.ndarray, tuple[int, int]]:
+    """Mask of label pixels within 1.5 radii of the pie, and the mask's offset in the figure.
+
+    Text is ink that is far from the background and, on a slice, neither a slice colour nor
+    a blend of a slice colour with the background: so the separator lines between slices and
+    their antialiasing drop out. The pie's rim and the hole's edge are removed. Text in the
+    background colour (white labels on dark slices) is not read.
+    """
+    height, width = rgb.shape[:2]
+    cx, cy = geometry.centre
+    radius, reach = geometry.radius, 1.5 * geometry.radius
+    x0, y0 = max(0, int(cx - reach)), max(0, int(cy - reach))
+    x1, y1 = min(width, int(np.ceil(cx + reach))), min(height, int(np.ceil(cy + reach)))
+    crop = rgb[y0:y1, x0:x1]
+    slice_colours = np.array([s.colour for s in geometry.slices], np.float32)
+    background = background_rgb(rgb)
+    nearest_slice = np.min(np.stack([colour_distance(crop, c) for c in slice_colours]), axis=0)
+    blend = np.min(np.stack([_distance_to_segment(crop, c, background) for c in slice_colours]), axis=0)
+    yy, xx = np.mgrid[y0:y1, x0:x1]
+    distance = np.hypot(xx - cx, yy - cy)
+    on_slices = (distance < radius) & (distance > geometry.hole)
+    ink = (colour_distance(crop, background) > 60) & (nearest_slice > 40) & np.where(on_slices, blend > 25, True)
+    edges = (np.abs(distance - radius) < 3) | ((geometry.hole > 0) & (np.abs(distance - geometry.hole) < 3))
+    # Where three colours meet (two slices and the separator) blends are not on one segment:
+    # along the boundaries only dark pixels (text crossing them) are kept.
+    boundaries = np.zeros(ink.shape, np.uint8)
+    for piece in geometry.slices:
+        angle = np.radians(piece.start)
+        rim = (int(round(cx + radius * np.cos(angle) - x0)), int(round(cy - radius * np.sin(angle) - y0)))
+        cv2.line(boundaries, (int(round(cx - x0)), int(round(cy - y0))), rim, 1, 3)
+    light = crop.astype(np.float32) @ _LUMA > 80
+    return ink & ~edges & ~(boundaries.astype(bool) & light), (x0, y0)
+
+
+def _distance_to_segment(rgb: np.ndarray, a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Distance of every pixel's colour from the blends of colours a and b (0..255 sRGB)."""
+    a, b = np.asarray(a, np.float32), np.asarray(b, np.float32)
+    direction = b - a
+    pixels = rgb.astype(np.float32) - a
+    t = np.clip((pixels @ direction) / max(float(direction @ direction), 1e-6), 0.0, 1.0)
+    return np.sqrt(((pixels - t[..., None] * direction) ** 2).sum(axis=-1))
+
+
+def _raster_label_lines(rgb: np.ndarray, geometry: Pie) -> list[TextSpan]:
+    """Label lines near the pie, read by OCR; a line counts when three readings agree."""
+    ink, (ox, oy) = _text_ink(rgb, geometry)
+    closed = cv2.dilate(ink.astype(np.uint8), np.ones((3, 7), np.uint8))
+    _, stats, _ = component_stats(closed, min_area=12)
+    limit = 0.4 * geometry.radius
+    boxes = [(int(bx), int(by), int(bw), int(bh)) for _, bx, by, bw, bh, _ in stats
+             if 5 <= bh <= limit and bh <= bw <= 2.5 * limit]  # a percentage is wider than tall
+    if not boxes:
+        return []
+    # The lines stacked on a white page, each in its own band: one OCR call reads them all.
+    # Text keeps its antialiased grey levels; everything that is not text turns white.
+    crop = rgb[oy:oy + ink.shape[0], ox:ox + ink.shape[1]]
+    grey = cv2.cvtColor(np.ascontiguousarray(crop), cv2.COLOR_RGB2GRAY)
+    near_text = cv2.dilate(ink.astype(np.uint8), np.ones((3, 3), np.uint8)).astype(bool)
+    grey = np.where(near_text, grey, 255).astype(np.uint8)
+    pad = 6
+    page_width = max(bw for _, _, bw, _ in boxes) + 2 * pad
+    page = np.full((sum(bh + 2 * pad for *_, bh in boxes), page_width), 255, np.uint8)
+    bands, top = [], 0
+    for bx, by, bw, bh in boxes:
+        page[top + pad:top + pad + bh, pad:pad + bw] = grey[by:by + bh, bx:bx + bw]
+        bands.append((top, top + bh + 2 * pad))
+        top += bh + 2 * pad
+    # Three readings at different scales; a misread digit seldom repeats at another scale.
+    glyph = float(np.median([bh for *_, bh in boxes]))
+    readings = []
+    for target in (20.0, 30.0, 40.0):
+        words = ocr_words(np.dstack([page] * 3), (0, 0, page_width, top), psm=6, whitelist="0123456789.,%",
+                          upscale=float(np.clip(target / glyph, 1.5, 5.0)))
+        readings.append(["".join(w.text for w in sorted((w for w in words if b0 <= (w.bbox[1] + w.bbox[3]) / 2 < b1),
+                                                         key=lambda w: w.bbox[0]))
+                         for b0, b1 in bands])
+    lines = []
+    for (bx, by, bw, bh), texts in zip(boxes, zip(*readings)):
+        # Kept: readings that agree, of one percentage no larger than the whole. Labels run
+        # together ('4.8%2.7%') are often misread and are left out, as is '214%' for '21.4%'.
+        values = [float(m.group(1).replace(",", ".")) for m in _PERCENTAGE.finditer(texts[0])]
+        if len(set(texts)) == 1 and len(values) == 1 and values[0] <= 100.0:
+            lines.append(TextSpan(text=texts[0], bbox=(ox + bx, oy + by, ox + bx + bw, oy + by + bh),
+                                  size_pt=0.0, angle=0.0, font="ocr"))
+    return lines
