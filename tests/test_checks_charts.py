@@ -134,10 +134,6 @@ RASTER_UNMEASURED = {"line-marker-gaps"}  # sample positions are invisible in pi
 # Known raster gaps (see the benchmark): strict, so a fix shows up as an unexpected pass.
 RASTER_GAPS = {
     ("bar-order", "bar"): "rotated or single-word category labels are not always read by OCR",
-    ("chart-3d", "pie"): "the squeezed pie outline is not yet separated from its labels",
-    ("area-stacked", "area"): "touching bands of a stack are not yet found after antialiasing",
-    ("box-order", "box"): "box outlines with whiskers are not yet found in pixels",
-    ("bar-stack-depth", "bar"): "equal segments of one stack are not all separated in pixels",
 }
 
 

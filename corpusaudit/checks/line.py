@@ -7,6 +7,8 @@ import numpy as np
 
 from corpusaudit.checks.registry import CheckContext, rule
 from corpusaudit.measure.axes import is_ordered_vocabulary
+from corpusaudit.measure.shapes import is_vector
+from corpusaudit.measure.text import parse_number
 from corpusaudit.model import Draft, MeasurementUnavailable, Option, Outcome
 
 
@@ -21,7 +23,8 @@ from corpusaudit.model import Draft, MeasurementUnavailable, Option, Outcome
     fix="""Highlight the series that matter and grey the rest, or use small multiples.""",
     problem="""A line chart with eleven coloured series tangled together.""",
     better="""Two or three highlighted series with the others in grey, or small multiples.""",
-    limitations="""Series are separated by colour and dash style; series drawn in one colour are counted as one.""",
+    limitations="""Series are separated by colour, and in vector figures also by dash style and width; in pixels
+        series drawn in one colour are counted as one, and overlapping translucent areas may be undercounted.""",
 )
 def line_series_count(ctx: CheckContext) -> Outcome:
     count = len(ctx.measure("line_series"))
@@ -50,16 +53,40 @@ def line_series_count(ctx: CheckContext) -> Outcome:
         them.""",
     better="""Bars or dots for the categories.""",
     limitations="""Relies on the x tick labels being words rather than numbers or dates; ordinal categories (low,
-        medium, high) may be legitimate.""",
+        medium, high) may be legitimate. On rasters, rotated labels or labels that text recognition returns as
+        fragments or duplicates leave it unmeasured.""",
 )
 def line_on_categories(ctx: CheckContext) -> Outcome:
     axis = ctx.measure("axes").x
     labels = axis.labels
     if axis.kind != "categorical" or len(labels) < ctx.options["min_labels"] or is_ordered_vocabulary(labels):
         return Outcome()
+    if not is_vector(ctx.figure) and not _labels_read(ctx, labels):
+        return Outcome(unmeasured=True, reason="x tick labels not read reliably")
     region = tuple(np.array([t.bbox for t in axis.ticks]).min(axis=0)[:2]) + tuple(np.array([t.bbox for t in axis.ticks]).max(axis=0)[2:])
     return Outcome(findings=(Draft(message=f"line drawn across {len(labels)} unordered categories ({', '.join(labels[:4])}...)",
                                    value=str(len(labels)), threshold="ordered x values", region=region),))
+
+
+MAX_READABLE_ROTATION = 10.0  # degrees: text recognition reads labels line by line, horizontally
+
+
+def _labels_read(ctx: CheckContext, labels: list[str]) -> bool:
+    """Whether recognised x labels can be trusted: horizontal (rotated labels come back as
+    fragments), and each a number or a word of letters, with no label read twice."""
+    try:
+        if ctx.measure("tick_label_angle").angle > MAX_READABLE_ROTATION:
+            return False
+    except MeasurementUnavailable:
+        pass
+    if len(set(labels)) < len(labels):
+        return False
+    return all(parse_number(label) is not None or _word_like(label) for label in labels)
+
+
+def _word_like(text: str) -> bool:
+    letters = sum(ch.isalpha() for ch in text)
+    return letters >= 2 and letters + sum(ch.isdigit() or ch in " -'." for ch in text) == len(text)
 
 
 @rule(
@@ -74,11 +101,14 @@ def line_on_categories(ctx: CheckContext) -> Outcome:
     problem="""Samples from 1990, 2000, 2015 and 2020 placed at equal spacing, so the change per year is
         distorted.""",
     better="""A numeric year axis on which 1990-2000 is twice as long as 2015-2020.""",
-    limitations="""Needs numeric x tick labels; text recognition errors on rasters can hide the problem.""",
+    limitations="""Needs numeric x tick labels; text recognition errors on rasters can hide the problem, and rotated
+        or fragmentary raster labels leave it unmeasured.""",
 )
 def line_uneven_axis(ctx: CheckContext) -> Outcome:
     axis = ctx.measure("axes").x
     ticks = [t for t in axis.ticks if t.value is not None]
+    if not is_vector(ctx.figure) and not _labels_read(ctx, axis.labels):
+        return Outcome(unmeasured=True, reason="x tick labels not read reliably")
     if len(ticks) < 3 or len(ticks) < len(axis.ticks):
         return Outcome()
     pixels = np.diff([t.pixel for t in ticks])
@@ -109,15 +139,15 @@ def line_uneven_axis(ctx: CheckContext) -> Outcome:
     problem="""A line through yearly samples with two years missing, drawn as one unbroken line without
         markers.""",
     better="""A marker at each sample (or a visible break in the line) so readers see where the data are.""",
-    limitations="""Needs the sample positions (vector vertices, or corners visible in pixels); smoothed curves
-        hide them and are left unmeasured.""",
+    limitations="""Needs the sample positions: vector vertices, or markers visible in pixels; a raster line
+        without markers is left unmeasured, and smoothed vector curves hide their samples.""",
 )
 def line_marker_gaps(ctx: CheckContext) -> Outcome:
     series = ctx.measure("line_series")
     if not series:
         return Outcome()
-    if all(s.has_markers is None for s in series):
-        return Outcome(unmeasured=True, reason="sample positions are not visible in pixels")
+    if any(not s.has_markers and not s.points for s in series):
+        return Outcome(unmeasured=True, reason="sample positions of a line without markers are not visible in pixels")
     limit = ctx.options["max_step_ratio"]
     for line in series:
         if line.has_markers:

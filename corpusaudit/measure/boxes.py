@@ -1,8 +1,10 @@
 """Box plots: boxes with their medians, in order along the category axis (vertical boxes).
 
 Vector: rectangles (stroked or filled) in the plot area that hold a horizontal median
-segment spanning their width and have a whisker at their centre. Raster: rectangular
-outlines or fills whose interior holds a full-width line of another colour.
+segment spanning their width and have a whisker at their centre. Raster: outlined boxes are
+three or more horizontal strokes of one width joined by vertical sides, the inner one the
+median; filled boxes are solid rectangles holding a full-width line of another colour;
+both need a whisker leaving the middle of the box.
 """
 
 from __future__ import annotations
@@ -15,7 +17,7 @@ import numpy as np
 from corpusaudit.measure import measurement
 from corpusaudit.measure.legend import in_any
 from corpusaudit.measure.shapes import (
-    axis_aligned_segment, bbox_area, colour_distance, intersect, is_vector, require_pixels,
+    axis_aligned_segment, background_rgb, bbox_area, colour_distance, intersect, is_vector, require_pixels,
 )
 from corpusaudit.model import BBox, Figure, MeasurementUnavailable
 
@@ -46,13 +48,58 @@ def _vector_boxes(figure: Figure, plot: BBox, frames: list[BBox]) -> list[Box]:
     return boxes
 
 
-def _raster_boxes(rgb: np.ndarray, plot: BBox) -> list[Box]:
-    x0, y0, x1, y1 = (int(round(v)) for v in plot)
-    inner = np.ascontiguousarray(rgb[y0 + 2:y1 - 1, x0 + 2:x1 - 1])
-    panel = inner[0, 0].astype(float)
-    ink = (colour_distance(inner, panel) > 50).astype(np.uint8)
-    contours, hierarchy = cv2.findContours(ink, cv2.RETR_CCOMP, cv2.CHAIN_APPROX_SIMPLE)
-    boxes = []
+def _horizontal_segments(ink: np.ndarray, min_length: int) -> list[tuple[int, int, float]]:
+    """(x0, x1, y) of the horizontal strokes of a mask at least min_length long."""
+    runs = cv2.morphologyEx(ink, cv2.MORPH_OPEN, np.ones((1, min_length), np.uint8))
+    count, _, stats, centroids = cv2.connectedComponentsWithStats(runs, connectivity=8)
+    return [(int(stats[k, 0]), int(stats[k, 0] + stats[k, 2] - 1), float(centroids[k, 1]))
+            for k in range(1, count) if stats[k, 3] <= 6]
+
+
+def _outlined_boxes(inner: np.ndarray, ink: np.ndarray) -> list[tuple[BBox, float]]:
+    """Unfilled boxes: three or more horizontal strokes of one width (Q3, median, Q1)
+    joined by vertical sides at both ends, with a whisker leaving the middle of the top or
+    the bottom. Caps are narrower and grid lines span the plot, so neither groups with a box."""
+    height, width = ink.shape
+    segments = [s for s in _horizontal_segments(ink, 8) if s[1] - s[0] <= 0.5 * width]
+    found = []
+    used: set[int] = set()
+    for i, (x0, x1, _) in enumerate(segments):
+        if i in used:
+            continue
+        group = [j for j, (a, b, _) in enumerate(segments) if abs(a - x0) <= 3 and abs(b - x1) <= 3]
+        rows = sorted(segments[j][2] for j in group)
+        used.update(group)
+        if len(rows) < 3:
+            continue
+        top, bottom = int(round(rows[0])), int(round(rows[-1]))
+        if bottom - top < 4:
+            continue
+        sides = [ink[top:bottom + 1, max(0, x - 2):x + 3].any(axis=1).mean() for x in (x0, x1)]
+        if min(sides) < 0.8:
+            continue
+        centre = (x0 + x1) // 2
+        above = ink[max(0, top - 6):max(0, top - 2), max(0, centre - 2):centre + 3]
+        below = ink[bottom + 3:bottom + 7, max(0, centre - 2):centre + 3]
+        if not (above.any() or below.any()):
+            continue  # no whisker: a legend frame or a table, not a box plot
+        inside = [r for r in rows[1:-1] if top + 1 < r < bottom - 1]
+        if not inside:
+            continue
+        edge_colour = np.median(inner[top, x0:x1 + 1].reshape(-1, 3).astype(float), axis=0)
+        # the median is the inner stroke; when several (a mean line), the one in its own colour
+        median = max(inside, key=lambda r: float(np.linalg.norm(
+            np.median(inner[int(round(r)), x0:x1 + 1].reshape(-1, 3).astype(float), axis=0) - edge_colour)))
+        found.append(((float(x0), float(top), float(x1 + 1), float(bottom + 1)), float(median)))
+    return found
+
+
+def _filled_boxes(inner: np.ndarray, ink: np.ndarray) -> list[tuple[BBox, float]]:
+    """Filled boxes: solid rectangles whose interior holds a full-width line of another
+    colour (the median) and with a whisker at the middle of the top or bottom."""
+    solid = cv2.morphologyEx(ink, cv2.MORPH_OPEN, np.ones((5, 5), np.uint8))  # whiskers and caps go
+    contours, _ = cv2.findContours(solid, cv2.RETR_CCOMP, cv2.CHAIN_APPROX_SIMPLE)
+    found = []
     for contour in contours:
         bx, by, bw, bh = cv2.boundingRect(contour)
         if bw < 8 or bh < 6 or cv2.contourArea(contour) < 0.85 * bw * bh:
@@ -69,12 +116,24 @@ def _raster_boxes(rgb: np.ndarray, plot: BBox) -> list[Box]:
         top_ink = ink[max(0, by - 3), bx + bw // 2 - 1:bx + bw // 2 + 2]
         if not (bottom_ink.any() or top_ink.any()):
             continue  # no whisker: a bar or a legend swatch
-        boxes.append(Box(bbox=(float(x0 + 2 + bx), float(y0 + 2 + by), float(x0 + 2 + bx + bw), float(y0 + 2 + by + bh)),
-                         median=float(y0 + 2 + by + 3 + rows.mean()), position=float(x0 + 2 + bx + bw / 2)))
+        found.append(((float(bx), float(by), float(bx + bw), float(by + bh)), float(by + 3 + rows.mean())))
+    return found
+
+
+def _raster_boxes(rgb: np.ndarray, plot: BBox) -> list[Box]:
+    x0, y0, x1, y1 = (int(round(v)) for v in plot)
+    inner = np.ascontiguousarray(rgb[y0 + 2:y1 - 1, x0 + 2:x1 - 1])
+    if inner.size == 0:
+        raise MeasurementUnavailable("empty plot area")
+    panel = background_rgb(inner)
+    ink = (colour_distance(inner, panel) > 80).astype(np.uint8)  # light grid lines stay out
+    candidates = _outlined_boxes(inner, ink) + _filled_boxes(inner, ink)
     unique: list[Box] = []
-    for box in sorted(boxes, key=lambda b: -bbox_area(b.bbox)):  # outer outline and inner fill: keep one
-        if not any(abs(box.position - other.position) < 3 for other in unique):
-            unique.append(box)
+    for box, median in sorted(candidates, key=lambda c: -bbox_area(c[0])):  # outline and fill of one box: keep one
+        shifted = (box[0] + x0 + 2, box[1] + y0 + 2, box[2] + x0 + 2, box[3] + y0 + 2)
+        position = (shifted[0] + shifted[2]) / 2
+        if not any(abs(position - other.position) < 3 for other in unique):
+            unique.append(Box(bbox=shifted, median=median + y0 + 2, position=position))
     return unique
 
 

@@ -2,9 +2,10 @@
 
 Vector: stroked polylines grouped by colour, dash pattern and width (one group is one
 series), markers as small closed paths on the series' vertices, filled areas as closed
-polygons with their lower boundary. Raster: series are the chromatic palette colours drawn
-as thin strokes inside the plot area; stacked areas are columns where bands of different
-palette colours touch.
+polygons with their lower boundary. Raster: series are the palette colours drawn
+as thin strokes across the plot area (with their markers, when round blobs sit on the
+stroke); stacked areas are bands of different colours that span the filled width and
+touch.
 """
 
 from __future__ import annotations
@@ -80,29 +81,153 @@ def _vector_series(figure: Figure, plot: BBox, frames: list[BBox]) -> list[Serie
     return series
 
 
-def _raster_series(rgb: np.ndarray, plot: BBox) -> list[Series]:
+MIN_SPAN_SHARE = 0.2  # a series runs across at least this share of the plot width
+FILL_SHARE = 0.01  # a solid region of one colour larger than this share of the plot is a fill, not a stroke
+
+
+def _colour_classes(inner: np.ndarray) -> tuple[np.ndarray, list[np.ndarray]]:
+    """Every pixel labelled with its nearest palette colour (greys included), -1 for the
+    plot panel and for pixels far from every colour."""
     from corpusaudit.measure.colour import extract_palette
 
+    panel = background_rgb(inner)
+    # blends are kept: a grey line lies between a darker grey and the panel; fringes are told apart later by place
+    palette = [np.asarray(c.rgb) * 255.0 for c in extract_palette(inner, max_colours=16, min_share=0.002, blend_tolerance=0.0)]
+    palette = [c for c in palette if float(np.linalg.norm(c - panel)) > 45]  # JPEG fringes lie close to the panel
+    if not palette:
+        return np.full(inner.shape[:2], -1), []
+    distances = np.stack([colour_distance(inner, panel)] + [colour_distance(inner, c) for c in palette])
+    nearest = distances.argmin(axis=0) - 1  # -1: the panel
+    nearest[distances.min(axis=0) > 25] = -1  # intermediate (anti-aliased) pixels belong to no colour
+    return nearest, palette
+
+
+def _grid_free(inner: np.ndarray, panel: np.ndarray) -> np.ndarray:
+    """False on the rows and columns that ink fills along much of the plot (grid and
+    reference lines, dashed or not, whatever their shade), True elsewhere."""
+    ink = colour_distance(inner, panel) > 15
+    keep = np.ones(ink.shape, bool)
+    height, width = ink.shape
+    for index in np.flatnonzero(ink.sum(axis=1) >= 0.3 * width):
+        keep[max(0, index - 1):index + 2, :] = False
+    for index in np.flatnonzero(ink.sum(axis=0) >= 0.3 * height):
+        keep[:, max(0, index - 1):index + 2] = False
+    return keep
+
+
+def _markers_of(mask: np.ndarray, stroke_width: float) -> list[tuple[float, float]]:
+    """Centres of the round blobs on a stroke (markers), when at least three of like size."""
+    size = max(3, int(round(2.5 * stroke_width)) | 1)
+    blobs = cv2.morphologyEx(mask, cv2.MORPH_OPEN, cv2.getStructuringElement(cv2.MORPH_ELLIPSE, (size, size)))
+    count, _, stats, centroids = cv2.connectedComponentsWithStats(blobs, connectivity=8)
+    if count <= 3:
+        return []
+    areas = stats[1:, cv2.CC_STAT_AREA].astype(float)
+    w, h = stats[1:, cv2.CC_STAT_WIDTH].astype(float), stats[1:, cv2.CC_STAT_HEIGHT].astype(float)
+    typical = np.median(areas)
+    round_blobs = (np.abs(w - h) <= 0.35 * np.maximum(w, h)) & (areas >= 0.5 * typical) & (areas <= 2.0 * typical)
+    if round_blobs.sum() < 3:
+        return []
+    return sorted((float(x), float(y)) for x, y in centroids[1:][round_blobs])
+
+
+def _raster_series(rgb: np.ndarray, plot: BBox) -> list[Series]:
+    """Series are the colours of the plot drawn as thin strokes across it.
+
+    Pixels are labelled with their nearest palette colour, leaving out rows and columns
+    that ink fills across the plot (grid); a colour is dropped when it forms large solid
+    regions (areas, bars) or spans too little of the width (legend swatches, text).
+    Fringes and colour variants of one line are grouped into one series (_co_located). Round blobs of a stroke's colour at least 2.5 stroke widths across are its
+    markers, and their centres its sample points.
+    """
     x0, y0, x1, y1 = (int(round(v)) for v in plot)
     inner = np.ascontiguousarray(rgb[y0 + 3:y1 - 2, x0 + 3:x1 - 2])
     if inner.size == 0:
         raise MeasurementUnavailable("empty plot area")
-    palette = [c for c in extract_palette(inner, max_colours=12, min_share=0.01) if not c.is_grey]
-    series = []
-    for colour in palette:
-        rgb255 = np.asarray(colour.rgb) * 255.0
-        mask = (colour_distance(inner, rgb255) < 40).astype(np.uint8)
-        thick = cv2.morphologyEx(mask, cv2.MORPH_OPEN, np.ones((9, 9), np.uint8))
-        if thick.sum() > 0.3 * mask.sum():
-            continue  # a filled region (area, bar), not a stroke
-        columns = np.flatnonzero(mask.any(axis=0))
-        if len(columns) < 0.2 * inner.shape[1]:
+    height, width = inner.shape[:2]
+    classes, palette = _colour_classes(inner)
+    classes[~_grid_free(inner, background_rgb(inner))] = -1
+    strokes = []
+    for index, colour in enumerate(palette):
+        mask = (classes == index).astype(np.uint8)
+        if not mask.any():
             continue
+        thick = cv2.morphologyEx(mask, cv2.MORPH_OPEN, np.ones((9, 9), np.uint8))
+        _, _, stats, _ = cv2.connectedComponentsWithStats(thick, connectivity=8)
+        if len(stats) > 1 and stats[1:, cv2.CC_STAT_AREA].max() > FILL_SHARE * width * height:
+            continue  # a filled region (area, bar), not a stroke
+        strokes.append((colour, mask))
+    groups = _co_located(strokes, background_rgb(inner))
+    series = []
+    for members in groups:
+        mask = np.any([strokes[k][1] for k in members], axis=0).astype(np.uint8)
+        columns = np.flatnonzero(mask.any(axis=0))
+        if len(columns) < MIN_SPAN_SHARE * width:
+            continue
+        colour = max((strokes[k] for k in members), key=lambda item: int(item[1].sum()))[0]
+        column_heights = mask.sum(axis=0)[columns]
+        stroke_width = float(np.percentile(column_heights, 25))
+        markers = _markers_of(mask, stroke_width)
+        covered = np.zeros(width, bool)
+        covered[columns] = True
+        spread = covered[columns.min():columns.max() + 1]
+        dashes = "dashed" if (~spread).mean() > 0.15 else ""
         ys, xs = np.nonzero(mask)
-        series.append(Series(colour=tuple(int(round(v)) for v in rgb255), dashes="", points=(), has_markers=None,
+        series.append(Series(colour=tuple(int(round(v)) for v in colour), dashes=dashes,
+                             points=tuple((x0 + 3 + x, y0 + 3 + y) for x, y in markers),
+                             has_markers=bool(markers),
                              bbox=(float(x0 + 3 + xs.min()), float(y0 + 3 + ys.min()),
                                    float(x0 + 3 + xs.max()), float(y0 + 3 + ys.max()))))
     return series
+
+
+def _co_located(strokes: list[tuple[np.ndarray, np.ndarray]], panel: np.ndarray) -> list[list[int]]:
+    """Groups of strokes that are one line.
+
+    A stroke whose colour lies between other strokes' colours and the panel, and whose
+    pixels run along those strokes, is their anti-aliased fringe and is left out. A
+    stroke lying mostly within two pixels of a longer one, which lies along it too or
+    which it follows for only a stretch, is a variant of that line's colour (JPEG shifts
+    thin lines' colours). Lines that merely cross share few pixels.
+    """
+    near = [cv2.dilate(mask, np.ones((5, 5), np.uint8)) for _, mask in strokes]
+    pixels = [mask.astype(bool) for _, mask in strokes]
+    fringes = set()
+    for k, (colour, _) in enumerate(strokes):
+        sources = [j for j, (other, _) in enumerate(strokes) if j != k and _between(colour, other, panel)]
+        if sources and float(np.any([near[j] for j in sources], axis=0)[pixels[k]].mean()) >= 0.6:
+            fringes.add(k)
+    kept = [k for k in range(len(strokes)) if k not in fringes and pixels[k].any()]
+    parent = {k: k for k in kept}
+
+    def root(k: int) -> int:
+        while parent[k] != k:
+            k = parent[k]
+        return k
+
+    spans = {k: int(pixels[k].any(axis=0).sum()) for k in kept}
+    for a in kept:
+        for b in kept:
+            if a == b or spans[a] > spans[b]:
+                continue
+            # a lies along b, and b along a or a covers only a stretch of b (a shifted segment)
+            if float(near[b][pixels[a]].mean()) >= 0.6 and (
+                    float(near[a][pixels[b]].mean()) >= 0.5 or spans[a] <= 0.5 * spans[b]):
+                parent[root(a)] = root(b)
+    groups: dict[int, list[int]] = {}
+    for k in kept:
+        groups.setdefault(root(k), []).append(k)
+    return list(groups.values())
+
+
+def _between(colour: np.ndarray, source: np.ndarray, panel: np.ndarray, tolerance: float = 18.0) -> bool:
+    """colour lies on the sRGB segment from source to the panel colour (a blend of the two)."""
+    direction = panel - source
+    length2 = float((direction ** 2).sum())
+    if length2 < 1:
+        return False
+    t = float(((colour - source) * direction).sum() / length2)
+    return 0.1 <= t <= 0.95 and float(np.linalg.norm(source + t * direction - colour)) <= tolerance
 
 
 @measurement("line_series")
@@ -157,13 +282,25 @@ def _vector_areas(figure: Figure, plot: BBox, frames: list[BBox]) -> AreaLayers:
     return AreaLayers(count=len(polygons), stacked=stacked, region=region)
 
 
+SPANNING_SHARE = 0.8  # a stacked band runs across (nearly) every column that holds an area
+
+
 def _raster_areas(rgb: np.ndarray, plot: BBox) -> AreaLayers:
+    """Filled bands are the solid colour regions of the plot (greys included, the plot
+    panel excluded). The areas are stacked when at least two bands span the whole width
+    of the filled region, sit directly on one another in most columns, and neither is
+    the other seen through a translucent band. Translucent areas drawn from a common
+    baseline fail the first test wherever their tops cross (the region where one layer
+    shows alone stops at the crossing), and the last one elsewhere."""
     from corpusaudit.measure.colour import extract_palette
 
     x0, y0, x1, y1 = (int(round(v)) for v in plot)
     inner = np.ascontiguousarray(rgb[y0 + 3:y1 - 2, x0 + 3:x1 - 2])
-    palette = [np.asarray(c.rgb) * 255.0 for c in extract_palette(inner, max_colours=10, min_share=0.02)
-               if not c.is_grey]
+    if inner.size == 0:
+        raise MeasurementUnavailable("empty plot area")
+    background = background_rgb(inner)
+    palette = [np.asarray(c.rgb) * 255.0 for c in extract_palette(inner, max_colours=10, min_share=0.02)]
+    palette = [colour for colour in palette if float(np.linalg.norm(colour - background)) > 20]
     if not palette:
         raise MeasurementUnavailable("no filled areas in the plot")
     distances = np.stack([colour_distance(inner, colour) for colour in palette])
@@ -173,13 +310,16 @@ def _raster_areas(rgb: np.ndarray, plot: BBox) -> AreaLayers:
     bands = [k for k, mask in enumerate(solid) if mask.sum() >= 0.02 * inner.shape[0] * inner.shape[1]]
     if not bands:
         raise MeasurementUnavailable("no filled areas in the plot")
-    background = background_rgb(inner)
-    blends = {(a, b) for a in bands for b in bands
+    with_area = np.zeros(inner.shape[1], bool)
+    for k in bands:
+        with_area |= solid[k].any(axis=0)
+    spanning = [k for k in bands if solid[k].any(axis=0)[with_area].mean() >= SPANNING_SHARE]
+    blends = {(a, b) for a in spanning for b in spanning
               if a != b and _is_blend(palette[a], palette[b], [palette[c] for c in bands if c != a], background)}
     touching_columns = 0
     columns_with_area = 0
     for column in range(0, inner.shape[1], 4):
-        present = [k for k in bands if solid[k][:, column].any()]
+        present = [k for k in spanning if solid[k][:, column].any()]
         if not present:
             continue
         columns_with_area += 1
@@ -195,16 +335,35 @@ def _raster_areas(rgb: np.ndarray, plot: BBox) -> AreaLayers:
             else:
                 continue
             break
-    stacked = columns_with_area > 0 and touching_columns >= 0.5 * columns_with_area and len(bands) >= 2
-    return AreaLayers(count=len(bands), stacked=stacked, region=plot)
+    stacked = len(spanning) >= 2 and columns_with_area > 0 and touching_columns >= 0.5 * columns_with_area
+    ys, xs = np.nonzero(np.any([solid[k] for k in bands], axis=0))
+    region = (float(x0 + 3 + xs.min()), float(y0 + 3 + ys.min()), float(x0 + 3 + xs.max()), float(y0 + 3 + ys.max()))
+    if stacked:
+        count = len(spanning)
+    else:  # overlapping translucent areas: regions where several show through are not layers
+        count = max(1, sum(1 for a in bands if not any(
+            _is_blend(palette[a], palette[b], [palette[c] for c in bands if c not in (a, b)], background)
+            for b in bands if b != a)))
+    return AreaLayers(count=count, stacked=stacked, region=region)
+
+
+MAX_BLEND_ALPHA = 0.6  # translucent areas are drawn at alpha of about 0.2 to 0.5 (common practice)
 
 
 def _is_blend(lower: np.ndarray, upper: np.ndarray, others: list[np.ndarray], background: np.ndarray) -> bool:
     """lower is upper seen through another translucent band (areas overlap, not stacked).
 
-    Over a light background, alpha compositing adds the layers' deficits from the
-    background: (bg - lower) ~ (bg - upper) + k (bg - other) with 0.2 <= k <= 1.
+    Alpha compositing gives lower = alpha * L + (1 - alpha) * upper for the colour L of
+    the band drawn over upper; a small alpha leaves L inside the RGB cube only when lower
+    is close to upper, so two opaque bands of distinct colours fail. And over a light
+    background the layers' deficits add: (bg - lower) ~ (bg - upper) + k (bg - other)
+    with 0.2 <= k <= 1 for another band seen alone.
     """
+    difference = lower - upper
+    needed = np.where(difference > 0, difference / np.maximum(255.0 - upper, 1e-6),
+                      -difference / np.maximum(upper, 1e-6))
+    if float(needed.max()) <= MAX_BLEND_ALPHA:
+        return True
     residual_of = lower - upper  # = -(deficit of lower - deficit of upper)
     for other in others:
         deficit = background - other

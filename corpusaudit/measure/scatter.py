@@ -5,7 +5,7 @@ Hidden share is 1 - (area covered by the union of markers) / (sum of marker area
 Vector: exact, by painting every marker's disk. Raster: isolated blobs give the size of
 one marker; in clumps the number of markers is estimated from local coverage c under a
 random-placement model (n a / S = -ln(1 - c)), so heavily overlapped clumps count for the
-markers they hide.
+markers they hide. Markers count as on the frame only on sides where the plot panel ends.
 """
 
 from __future__ import annotations
@@ -122,12 +122,33 @@ def _raster_markers(rgb: np.ndarray, plot: BBox) -> Markers:
                 visible_area += covered
     hidden = max(0.0, 1.0 - visible_area / total_area) if total_area else 0.0
     frame = ink.shape
+    left, top, right, bottom = _framed_sides(rgb, (x0, y0, x1, y1), panel)
     edge = [(float(x0 + 2 + bx), float(y0 + 2 + by), float(x0 + 2 + bx + bw), float(y0 + 2 + by + bh))
             for _, bx, by, bw, bh, area in stats
-            if area <= 2.5 * single and (bx <= 1 or by <= 1 or bx + bw >= frame[1] - 1 or by + bh >= frame[0] - 1)]
+            if area <= 2.5 * single and (left and bx <= 1 or top and by <= 1 or right and bx + bw >= frame[1] - 1
+                                         or bottom and by + bh >= frame[0] - 1)]
     centres = centroids + [x0 + 2, y0 + 2]
     return Markers(count=int(round(total_area / single)), radius=radius, hidden_share=float(hidden),
                    edge_count=len(edge), edge_boxes=tuple(edge), dense_region=_dense_region(centres, plot))
+
+
+def _framed_sides(rgb: np.ndarray, plot: tuple[int, int, int, int], panel: np.ndarray) -> tuple[bool, ...]:
+    """Which sides of the plot area (left, top, right, bottom) are a real boundary: an
+    axis line runs along them, or the panel colour stops beyond them (the page). Where
+    the panel goes on past a side (the plot area was taken from a grid cell), markers
+    there are not cut by any frame."""
+    height, width = rgb.shape[:2]
+    x0, y0, x1, y1 = plot
+
+    def real(line: np.ndarray, beyond: np.ndarray, axis: int) -> bool:
+        if line.size and float((colour_distance(line, panel) > 60).any(axis=axis).mean()) >= 0.6:
+            return True
+        return beyond.size == 0 or float((colour_distance(beyond, panel) < 12).mean()) < 0.6
+
+    return (real(rgb[y0:y1, max(0, x0 - 2):x0 + 3], rgb[y0:y1, max(0, x0 - 9):max(0, x0 - 3)], 1),
+            real(rgb[max(0, y0 - 2):y0 + 3, x0:x1], rgb[max(0, y0 - 9):max(0, y0 - 3), x0:x1], 0),
+            real(rgb[y0:y1, max(0, x1 - 2):x1 + 3], rgb[y0:y1, min(width, x1 + 3):min(width, x1 + 9)], 1),
+            real(rgb[max(0, y1 - 2):y1 + 3, x0:x1], rgb[min(height, y1 + 3):min(height, y1 + 9), x0:x1], 0))
 
 
 @measurement("markers")
