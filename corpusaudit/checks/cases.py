@@ -225,6 +225,7 @@ def line_case(rng: np.random.Generator, index: int) -> Case:
         uneven_labels = [str(1990 + int(s)) for s in np.concatenate([[0], np.cumsum(steps)])]
     names = unordered_names(rng, n)
     styles = ["-", "--", ":", "-."]
+    legend = series > 1 and rng.random() < 0.4
 
     def draw(fig):
         ax = fig.add_subplot()
@@ -243,11 +244,12 @@ def line_case(rng: np.random.Generator, index: int) -> Case:
         if rotation:
             for label in ax.get_xticklabels():
                 label.set_rotation(rotation)
-        if series > 1 and rng.random() < 0.4:
+        if legend:
             ax.legend([f"Series {k + 1}" for k in range(series)], fontsize=6, loc="upper left", bbox_to_anchor=(1.0, 1.0))
 
     truth = {"line-series-count": series > 5, "line-on-categories": kind == "categorical",
-             "line-uneven-axis": kind == "uneven", "tick-label-rotation": rotation >= 30}
+             "line-uneven-axis": kind == "uneven", "tick-label-rotation": rotation >= 30,
+             "line-direct-labels": legend}
     if kind == "numeric":
         truth["line-marker-gaps"] = gaps and not markers
     return Case(f"line-{index}", "line", draw, truth, {"series": series, "rotation": rotation})
