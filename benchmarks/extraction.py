@@ -1,5 +1,6 @@
 """Figure extraction benchmark: precision and recall of figure boxes (IoU >= 0.5) by source,
-caption accuracy and milliseconds per page, on a generated truth corpus.
+the mean IoU of the matched boxes, caption accuracy and milliseconds per page, on a generated
+truth corpus.
 
     python -m benchmarks.extraction [--documents 44] [--rebuild]
 
@@ -47,6 +48,7 @@ def run(documents: int, rebuild: bool, verbose: bool) -> dict:
     tp = defaultdict(int)
     fn = defaultdict(int)
     fp = defaultdict(int)
+    overlap = defaultdict(float)  # summed IoU of matched pairs
     captions_right = captions_total = spurious_captions = uncaptioned = 0
     pages = 0
     decorations = 0
@@ -69,8 +71,11 @@ def run(documents: int, rebuild: bool, verbose: bool) -> dict:
             matched_f = {j for _, j in pairs}
             for i, j in pairs:
                 t, f = page_truth[i], found[j]
+                if verbose and iou(t.box, f.bbox) < 0.8:
+                    print(f"  loose box {t.source}/{t.kind}: {doc_truth.name} p{number} IoU {iou(t.box, f.bbox):.2f}")
                 key = t.source if t.source == f.source else f"{t.source}->{f.source}"
                 tp[t.source] += 1
+                overlap[t.source] += iou(t.box, f.bbox)
                 if key != t.source and verbose:
                     print(f"  source {key}: {doc_truth.name} p{number} {t.kind}")
                 if t.caption_number:
@@ -83,6 +88,8 @@ def run(documents: int, rebuild: bool, verbose: bool) -> dict:
                 else:
                     uncaptioned += 1
                     spurious_captions += bool(f.figure_number)
+                    if f.figure_number and verbose:
+                        print(f"  spurious caption: {doc_truth.name} p{number} {t.kind} got {f.figure_number!r}")
             for i, t in enumerate(page_truth):
                 if i not in matched_t:
                     fn[t.source] += 1
@@ -97,7 +104,7 @@ def run(documents: int, rebuild: bool, verbose: bool) -> dict:
     print(f"documents {len(truth)}, pages {pages}, decorations skipped {decorations}, page errors {len(errors)}")
     for error in errors[:10]:
         print("  error:", error)
-    print(f"{'source':8} {'truth':>6} {'found':>6} {'TP':>5} {'precision':>10} {'recall':>8}")
+    print(f"{'source':8} {'truth':>6} {'found':>6} {'TP':>5} {'precision':>10} {'recall':>8} {'mean IoU':>9}")
     summary = {}
     for source in SOURCES:
         truth_count = tp[source] + fn[source]
@@ -105,7 +112,9 @@ def run(documents: int, rebuild: bool, verbose: bool) -> dict:
         precision = tp[source] / found_count if found_count else float("nan")
         recall = tp[source] / truth_count if truth_count else float("nan")
         summary[source] = (precision, recall)
-        print(f"{source:8} {truth_count:6d} {found_count:6d} {tp[source]:5d} {precision:10.3f} {recall:8.3f}")
+        mean_iou = overlap[source] / tp[source] if tp[source] else float("nan")
+        print(f"{source:8} {truth_count:6d} {found_count:6d} {tp[source]:5d} {precision:10.3f} {recall:8.3f} "
+              f"{mean_iou:9.3f}")
     print(f"captions: {captions_right}/{captions_total} correct ({captions_right / max(captions_total, 1):.3f}); "
           f"spurious on uncaptioned figures: {spurious_captions}/{uncaptioned}")
     print(f"time: {1000 * elapsed / max(pages, 1):.1f} ms per page ({elapsed:.2f} s for {pages} pages)")

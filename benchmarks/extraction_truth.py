@@ -3,7 +3,8 @@
 Two producers lay out the same kinds of pages: reportlab (its canvas draws text, tables,
 captions, images and its own vector charts) and PyMuPDF (text, matplotlib PDF charts placed
 as forms, images). Pages vary: one or two columns, margins, header logos, tables, rotated
-and cropped pages, tiled images, images drawn twice, multi-panel figures, and scanned-looking
+(90, 180 and 270) and cropped pages, tiled images, images drawn twice, multi-panel figures (some
+labelled (a) and (b)), bar charts clipped at a raised axis, and scanned-looking
 pages (a page rendered to an image with light noise and re-embedded, sometimes with an
 invisible OCR text layer). Everything is invented and built from a fixed seed.
 
@@ -83,7 +84,10 @@ def mpl_chart(rng, width_in: float, height_in: float, kind: str | None = None, h
                            cmap=rng.choice(["viridis", "magma", "coolwarm"]), aspect="auto")
             fig.colorbar(im, ax=ax)
         elif kind == "bar":
-            ax.bar(labels, rng.uniform(1, 10, n), color=f"C{int(rng.integers(6))}")
+            values = rng.uniform(1, 10, n)
+            ax.bar(labels, values, color=f"C{int(rng.integers(6))}")
+            if rng.random() < 0.3:  # a raised value axis: the bars are drawn from 0 and clipped at the axes
+                ax.set_ylim(0.8 * float(values.min()), None)
         elif kind == "barh":
             ax.barh(labels, rng.uniform(1, 10, n))
         elif kind == "line":
@@ -205,7 +209,7 @@ def plan_document(rng, producer: str, scan: bool) -> list[PagePlan]:
                     break
                 y = added + float(rng.uniform(10, 20))
         if not scan and rng.random() < 0.15:
-            plan.rotation = 90
+            plan.rotation = int(rng.choice([90, 180, 270]))
         elif not scan and producer == "mu" and rng.random() < 0.15:
             plan.crop = (20.0, 25.0, width - 15.0, height - 20.0)
         pages.append(plan)
@@ -262,18 +266,25 @@ def _place(rng, plan: PagePlan, kind: str, x0: float, y: float, col_w: float, bo
     fy = y + (cap_h + cap_gap if above else 0)
     number = str(counter[0]) if captioned else ""
     source = "scan" if scan else ("vector" if figure in ("mpl_vector", "rl_vector") else "raster")
-    if figure == "twice":
+    if figure == "twice":  # two figures; a caption above the pair is the upper copy's, one below the lower's
         first = Item("figure", (fx0, fy, fx0 + w, fy + h), figure=figure, payload={"copy": 0},
-                     truth=TruthFigure((fx0, fy, fx0 + w, fy + h), source, "", figure))
+                     truth=TruthFigure((fx0, fy, fx0 + w, fy + h), source, number if above else "", figure))
         plan.items.append(first)
         fy += h + 12
+        number = "" if above else number
     if figure == "multipanel" and not captioned:
         # two panels without a caption to tie them: two figures
         half = (w - 8) / 2
-        plan.items.append(Item("figure", (fx0, fy, fx0 + w, fy + h), figure=figure,
+        plan.items.append(Item("figure", (fx0, fy, fx0 + w, fy + h), figure=figure, payload={"gap": 8.0},
                                truth=TruthFigure((fx0, fy, fx0 + half, fy + h), source, "", figure)))
         item = Item("truth", (fx0 + half + 8, fy, fx0 + w, fy + h),
                     truth=TruthFigure((fx0 + half + 8, fy, fx0 + w, fy + h), source, "", figure))
+    elif figure == "multipanel":
+        # one caption: one figure; half of them carry panel letters, and lettered panels may sit further apart
+        lettered = rng.random() < 0.5
+        gap = float(rng.uniform(8, 22)) if lettered else 8.0
+        item = Item("figure", (fx0, fy, fx0 + w, fy + h), figure=figure, payload={"gap": gap, "letters": lettered},
+                    truth=TruthFigure((fx0, fy, fx0 + w, fy + h), source, number, figure))
     else:
         item = Item("figure", (fx0, fy, fx0 + w, fy + h), figure=figure,
                     truth=TruthFigure((fx0, fy, fx0 + w, fy + h), source, number, figure))
@@ -500,10 +511,15 @@ def _rl_figure(pdf, item: Item, rng, image, H, renderPDF) -> None:
             image(_crop_png(payload["png"], px), pt)
         return
     if kind == "multipanel":
-        half = (w - 8) / 2
+        gap = item.payload["gap"]
+        half = (w - gap) / 2
         second = figure_payload(rng, item)
         image(payload["png"], (x0, y0, x0 + half, y1))
-        image(second["png"], (x0 + half + 8, y0, x1, y1))
+        image(second["png"], (x0 + half + gap, y0, x1, y1))
+        if item.payload.get("letters"):  # drawn over the panels' top-left corners
+            pdf.setFont("Helvetica-Bold", 9)
+            pdf.drawString(x0 + 3, H - (y0 + 10), "(a)")
+            pdf.drawString(x0 + half + gap + 3, H - (y0 + 10), "(b)")
         return
     data = payload.get("png") or payload.get("jpeg")
     image(data, item.box, mask="auto" if kind == "alpha" else None)
@@ -588,10 +604,14 @@ def _mu_figure(doc, page, item: Item, rng, shared: dict) -> None:
             page.insert_image(pymupdf.Rect(pt), stream=_crop_png(payload["png"], px), keep_proportion=False)
         return
     if kind == "multipanel":
-        half = (w - 8) / 2
+        gap = item.payload["gap"]
+        half = (w - gap) / 2
         second = figure_payload(rng, item)
         page.insert_image(pymupdf.Rect(x0, y0, x0 + half, y1), stream=payload["png"], keep_proportion=False)
-        page.insert_image(pymupdf.Rect(x0 + half + 8, y0, x1, y1), stream=second["png"], keep_proportion=False)
+        page.insert_image(pymupdf.Rect(x0 + half + gap, y0, x1, y1), stream=second["png"], keep_proportion=False)
+        if item.payload.get("letters"):  # drawn over the panels' top-left corners
+            page.insert_text((x0 + 3, y0 + 10), "(a)", fontsize=9, fontname="hebo")
+            page.insert_text((x0 + half + gap + 3, y0 + 10), "(b)", fontsize=9, fontname="hebo")
         return
     data = payload.get("png") or payload.get("jpeg")
     page.insert_image(pymupdf.Rect(item.box), stream=data, keep_proportion=False)

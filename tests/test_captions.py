@@ -7,7 +7,7 @@ import re
 import pymupdf
 
 from corpusaudit.extract import DEFAULT_CAPTION_PATTERN
-from corpusaudit.extract.captions import TextLine, assign_captions, caption_candidates
+from corpusaudit.extract.captions import Caption, TextLine, assign_captions, caption_candidates
 from tests.extract_fixtures import extract, image_bytes
 
 PATTERN = re.compile(DEFAULT_CAPTION_PATTERN, re.IGNORECASE)
@@ -56,3 +56,30 @@ def test_caption_pattern_is_configurable(tmp_path):
     custom = r"^\s*(Abbildung)\s*(\d+)\s*[.:]?"
     (figure,) = extract(tmp_path / "de.pdf", caption_pattern=custom).figures
     assert (figure.figure_number, figure.caption) == ("4", "Abbildung 4: Fangmenge.")
+
+
+def test_caption_above_one_figure_beats_being_level_with_another():
+    # Two columns: the caption sits above the right figure and level with the top of the left one.
+    left, right = (72, 40, 276, 230), (310, 160, 480, 300)
+    (caption,) = caption_candidates(_lines((0, 138, "Figure 3. Right column.")), PATTERN)
+    caption = Caption(caption.text, caption.number, (296, 138, 513, 151))
+    assert [c.number if c else None for c in assign_captions([left, right], [caption], 36)] == [None, "3"]
+
+
+def test_caption_is_judged_in_its_own_reading_frame():
+    # A page laid out upright and then given /Rotate 90: on display the text runs downwards and the
+    # caption that was under the figure is left of it. In the caption's frame it is still below.
+    figure = (300, 100, 450, 300)
+    downwards = (0.0, 1.0)
+    below = Caption("Figure 1. Turned.", "1", (270, 100, 282, 300), downwards)
+    above = Caption("Figure 2. Turned.", "2", (468, 100, 480, 300), downwards)
+    assert assign_captions([figure], [above, below], 36) == [below]
+
+
+def test_far_caption_needs_a_clear_strip_to_its_figure():
+    figure = (72, 100, 300, 250)
+    (caption,) = caption_candidates(_lines((0, 300, "Figure 5. Far below.")), PATTERN)  # 50 pt under the ink
+    assert assign_captions([figure], [caption], 36, text_boxes=[]) == [caption]
+    body = (72, 270, 290, 280)  # a line of body text between them
+    assert assign_captions([figure], [caption], 36, text_boxes=[body]) == [None]
+    assert assign_captions([figure], [caption], 36) == [None]  # page text unknown: near captions only

@@ -230,3 +230,36 @@ def test_heatmap_with_vector_axes_is_one_raster_figure(tmp_path):
     (figure,) = extract(_save(doc, tmp_path / "heat.pdf")).figures
     assert figure.source == "raster" and iou(figure.bbox, tuple(rect)) > 0.9
     assert "week" in {t.text for t in figure.vector.texts}
+
+
+def _two_pictures(tmp_path, name: str, first: tuple, second: tuple, caption_at: tuple | None, labels=()) -> list:
+    doc = pymupdf.open()
+    page = doc.new_page()
+    page.insert_image(pymupdf.Rect(first), stream=image_bytes(200, 150, seed=1), keep_proportion=False)
+    page.insert_image(pymupdf.Rect(second), stream=image_bytes(200, 150, seed=2), keep_proportion=False)
+    for text, point in labels:
+        page.insert_text(point, text, fontsize=9)
+    if caption_at:
+        page.insert_text(caption_at, "Figure 3. Two panels, invented data.", fontsize=9)
+    return extract(_save(doc, tmp_path / name)).figures
+
+
+def test_panels_on_one_grid_under_one_caption_are_one_figure(tmp_path):
+    figures = _two_pictures(tmp_path, "row.pdf", (72, 100, 252, 235), (260, 100, 440, 235), (72, 250))
+    assert [(f.bbox, f.figure_number, f.image_info["pieces"]) for f in figures] == [((72, 100, 440, 235), "3", 2)]
+
+
+def test_stacked_figures_that_do_not_line_up_stay_two(tmp_path):
+    # 10 pt apart, one above the other, different widths and no shared edge: two figures, the caption
+    # belongs to the lower one only.
+    figures = _two_pictures(tmp_path, "stack.pdf", (100, 100, 300, 230), (72, 240, 340, 380), (72, 395))
+    assert [(f.bbox, f.figure_number) for f in figures] == [((100, 100, 300, 230), ""), ((72, 240, 340, 380), "3")]
+
+
+def test_panels_labelled_a_and_b_may_sit_further_apart(tmp_path):
+    first, second = (72, 100, 252, 235), (272, 110, 452, 245)  # 20 pt apart, not lined up
+    figures = _two_pictures(tmp_path, "ab.pdf", first, second, (72, 262),
+                            labels=(("(a)", (74, 96)), ("(b)", (274, 106))))
+    assert [(f.figure_number, f.bbox[0], f.bbox[2]) for f in figures] == [("3", 72, 452)]
+    unlabelled = _two_pictures(tmp_path, "no-ab.pdf", first, second, (72, 262))
+    assert len(unlabelled) == 2

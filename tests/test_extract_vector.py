@@ -4,13 +4,14 @@ from __future__ import annotations
 
 import io
 
+import numpy as np
 import pymupdf
 import pytest
 from matplotlib.figure import Figure as MplFigure
 
 from corpusaudit.extract.regions import group_ink
 from corpusaudit.extract.vector_evidence import vector_evidence
-from tests.extract_fixtures import extract
+from tests.extract_fixtures import extract, iou
 
 
 def _labelled_chart() -> tuple[bytes, dict[str, tuple[float, float]]]:
@@ -93,3 +94,137 @@ def test_path_cap_records_a_page_error(tmp_path):
     assert result.figures == []
     assert result.errors == ["page 1: about 800 drawing paths exceed max_paths_per_page (500); vector figures not searched"]
     assert len(extract(tmp_path / "dense.pdf").figures) == 2
+
+
+def _chart_pdf(draw, transparent: bool = False, pad_inches: float = 0.05, size=(4, 3)) -> bytes:
+    fig = MplFigure(figsize=size)
+    draw(fig.add_subplot(111))
+    buffer = io.BytesIO()
+    fig.savefig(buffer, format="pdf", bbox_inches="tight", pad_inches=pad_inches, transparent=transparent)
+    return buffer.getvalue()
+
+
+def _place(page: pymupdf.Page, data: bytes, x0: float, y0: float, width: float) -> pymupdf.Rect:
+    with pymupdf.open("pdf", data) as src:
+        rect = pymupdf.Rect(x0, y0, x0 + width, y0 + width * src[0].rect.height / src[0].rect.width)
+        page.show_pdf_page(rect, src, 0)
+    return rect
+
+
+def _save(doc: pymupdf.Document, path):
+    doc.save(path)
+    doc.close()
+    return path
+
+
+def test_bars_clipped_at_a_raised_axis_do_not_join_the_chart_below(tmp_path):
+    def raised_axis(ax):  # bars are drawn from 0 and clipped at the axes, which start at 40
+        ax.bar(["north", "south", "east"], [45, 52, 58])
+        ax.set_ylim(40, 60)
+
+    doc = pymupdf.open()
+    page = doc.new_page()
+    upper = _place(page, _chart_pdf(raised_axis), 100, 60, 300)
+    lower = _place(page, _chart_pdf(lambda ax: ax.pie([3, 2, 1], labels=["cod", "dab", "ling"])), 100,
+                   upper.y1 + 36, 300)
+    figures = extract(_save(doc, tmp_path / "clip.pdf")).figures
+    assert len(figures) == 2
+    assert iou(figures[0].bbox, tuple(upper)) > 0.95 and iou(figures[1].bbox, tuple(lower)) > 0.95
+    # the clipped-away part of the bars is no evidence of the chart below
+    assert not any(p.fill and p.is_rect and p.fill[2] > 0.6 and p.fill[0] < 0.3 for p in figures[1].vector.paths)
+
+
+def test_axes_frame_and_ticks_count_in_a_transparent_charts_box(tmp_path):
+    # Straight axis lines have zero-width boxes; the figure box must still reach them.
+    rng = np.random.default_rng(4)
+    data = _chart_pdf(lambda ax: ax.boxplot([rng.normal(i, 1, 30) for i in range(4)]), transparent=True,
+                      pad_inches=0)
+    doc = pymupdf.open()
+    page = doc.new_page()
+    rect = _place(page, data, 100, 100, 300)  # pad 0: the page is matplotlib's own tight box of the artists
+    (figure,) = extract(_save(doc, tmp_path / "box.pdf")).figures
+    assert iou(figure.bbox, tuple(rect)) > 0.95
+
+
+def test_a_title_set_well_above_a_transparent_pie_belongs_to_it(tmp_path):
+    def pie(ax):
+        ax.pie([4, 3, 2, 1], labels=["cod", "dab", "ling", "hake"])
+        ax.set_title("Landings by species", pad=14)
+
+    doc = pymupdf.open()
+    page = doc.new_page()
+    _place(page, _chart_pdf(pie, transparent=True, pad_inches=0), 150, 100, 260)
+    ink = _ink_box(page)
+    (figure,) = extract(_save(doc, tmp_path / "pie.pdf")).figures
+    assert "Landings by species" in {t.text for t in figure.vector.texts}
+    x0, y0, x1, y1 = figure.bbox
+    assert x0 <= ink[0] + 1 and y0 <= ink[1] + 1 and x1 >= ink[2] - 1 and y1 >= ink[3] - 1  # all that is painted
+    assert iou(figure.bbox, ink) > 0.9
+
+
+def _ink_box(page: pymupdf.Page) -> tuple[float, float, float, float]:
+    """Box of the page's painted pixels at 72 dpi (one pixel a point), the reference for a figure's extent."""
+    pix = page.get_pixmap(dpi=72, alpha=False)
+    grey = np.frombuffer(pix.samples, np.uint8).reshape(pix.height, pix.width, pix.n).min(axis=2)
+    ys, xs = np.nonzero(grey < 200)
+    return float(xs.min()), float(ys.min()), float(xs.max() + 1), float(ys.max() + 1)
+
+
+def test_a_paragraph_just_above_a_chart_is_not_taken_as_its_title(tmp_path):
+    data = _chart_pdf(lambda ax: ax.plot([1, 3, 2, 4]), transparent=True, pad_inches=0)
+    doc = pymupdf.open()
+    page = doc.new_page()
+    rect = _place(page, data, 150, 120, 260)
+    for i, line in enumerate(("The regional survey counted every station", "twice in the invented season.")):
+        page.insert_text((180, rect.y0 - 22 + 11 * i), line, fontsize=9)  # centred over the chart, 6 pt above
+    (figure,) = extract(_save(doc, tmp_path / "para.pdf")).figures
+    assert iou(figure.bbox, tuple(rect)) > 0.95
+    assert "twice in the invented season." not in {t.text for t in figure.vector.texts}
+
+
+def _ruled_table(page: pymupdf.Page, x0: float, y0: float, rows: int = 5, cols: int = 4) -> pymupdf.Rect:
+    shape = page.new_shape()
+    for r in range(rows + 1):
+        shape.draw_line((x0, y0 + 16 * r), (x0 + 60 * cols, y0 + 16 * r))
+    for c in range(cols + 1):
+        shape.draw_line((x0 + 60 * c, y0), (x0 + 60 * c, y0 + 16 * rows))
+    shape.finish(color=(0, 0, 0), width=0.5)
+    shape.commit()
+    for r in range(rows):
+        for c in range(cols):
+            page.insert_text((x0 + 60 * c + 4, y0 + 16 * r + 12), f"{r * 7 + c * 3}.5", fontsize=9)
+    return pymupdf.Rect(x0, y0, x0 + 60 * cols, y0 + 16 * rows)
+
+
+def test_a_table_its_author_captioned_as_a_figure_is_a_figure(tmp_path):
+    doc = pymupdf.open()
+    page = doc.new_page()
+    table = _ruled_table(page, 72, 100)
+    page.insert_text((72, table.y1 + 14), "Figure 4. Survey effort by station.", fontsize=9)
+    _ruled_table(page, 72, 400)
+    page.insert_text((72, 390), "Table 2. Survey effort by month.", fontsize=9)  # a table's own caption
+    (figure,) = extract(_save(doc, tmp_path / "tables.pdf")).figures
+    assert (figure.source, figure.figure_number) == ("vector", "4")
+    assert iou(figure.bbox, tuple(table)) > 0.95
+
+
+def test_panels_of_one_embedded_graphic_under_one_caption_are_one_figure(tmp_path):
+    # Two subplots far apart on a transparent canvas: nothing joins their ink, but they come from
+    # one embedded graphic (one form, clipped to its box) and share one caption.
+    fig = MplFigure(figsize=(6, 2.6))
+    bars, lines = fig.subplots(1, 2)
+    fig.subplots_adjust(wspace=0.6)
+    bars.bar(["north", "south", "east"], [3, 5, 2])
+    lines.plot([1, 3, 2, 4])
+    buffer = io.BytesIO()
+    fig.savefig(buffer, format="pdf", bbox_inches="tight", pad_inches=0.05, transparent=True)
+    doc = pymupdf.open()
+    page = doc.new_page()
+    rect = _place(page, buffer.getvalue(), 72, 100, 468)
+    page.insert_text((72, rect.y1 + 14), "Figure 6. Catch and effort, invented data.", fontsize=9)
+    uncaptioned = doc.new_page()
+    _place(uncaptioned, buffer.getvalue(), 72, 100, 468)
+    result = extract(_save(doc, tmp_path / "panels.pdf"))
+    (figure,) = [f for f in result.figures if f.page == 1]
+    assert figure.figure_number == "6" and iou(figure.bbox, tuple(rect)) > 0.95
+    assert len([f for f in result.figures if f.page == 2]) == 2  # no caption ties them: two charts

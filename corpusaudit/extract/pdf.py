@@ -1,8 +1,9 @@
 """PDF pages: raster placements, vector figure regions and scanned pages, with captions.
 
-Each page's images, text and drawings are read once. Work happens in PyMuPDF's
-unrotated page coordinates (origin at the CropBox's top-left); figure boxes, captions
-placement and pixels are those of the page as displayed (/Rotate applied).
+Each page's images, text and drawings are read once; a drawing's box is cut to its clip
+path, so that only what is painted counts. Work happens in PyMuPDF's unrotated page
+coordinates (origin at the CropBox's top-left); figure boxes, captions placement and
+pixels are those of the page as displayed (/Rotate applied).
 """
 
 from __future__ import annotations
@@ -17,7 +18,8 @@ from corpusaudit.extract import ExtractConfig, ExtractError, ExtractResult
 from corpusaudit.extract.captions import Caption, TextLine, assign_captions, caption_candidates
 from corpusaudit.extract.raster import (FULL_PAGE_SHARE, PieceGroup, group_pieces, page_share, placement_key, placements,
                                         repeated_keys, visible_characters)
-from corpusaudit.extract.regions import SCATTER_MERGE_PT, Region, attach_labels, group_ink, label_like, merge_overlapping, vector_verdict
+from corpusaudit.extract.regions import (SCATTER_MERGE_PT, Region, attach_labels, attach_titles, group_ink, label_like,
+                                         merge_overlapping, union, vector_verdict)
 from corpusaudit.extract.scan import figure_boxes
 from corpusaudit.extract.vector_evidence import read_text, vector_evidence
 from corpusaudit.model import Document, Figure
@@ -26,6 +28,10 @@ pymupdf.TOOLS.mupdf_display_errors(False)
 
 SCAN_MAX_VISIBLE_CHARS = 40  # a full-page image under more painted text than this is a background
 PANEL_GAP_PT = 12.0  # an uncaptioned panel this close to a captioned figure is one of its panels
+LETTERED_PANEL_GAP_PT = 24.0  # panels labelled (a), (b) may sit this far apart
+PANEL_ALIGN_PT = 4.0  # panels on one grid share an edge to within the play of their labels
+GRAPHIC_PAGE_SHARE = 0.8  # a clip this large is the page's own, not an embedded graphic's
+PANEL_LABEL = re.compile(r"^\(?([a-hA-H])\)(?:\s|$)|^([a-hA-H])$")
 
 
 def open_pdf(doc: Document, config: ExtractConfig) -> pymupdf.Document:
@@ -76,7 +82,7 @@ def text_lines(text: dict) -> list[TextLine]:
             if not content:
                 continue
             size = max((float(span["size"]) for span in line["spans"]), default=0.0)
-            lines.append(TextLine(tuple(line["bbox"]), content, number, first, size))
+            lines.append(TextLine(tuple(line["bbox"]), content, number, first, size, tuple(line["dir"])))
             first = False
     return lines
 
@@ -102,7 +108,10 @@ class _Page:
         return pymupdf.Rect(rect) * self.rotation
 
     def shown_captions(self) -> list[Caption]:
-        return [Caption(c.text, c.number, _box(self.shown(pymupdf.Rect(c.bbox)))) for c in self.captions]
+        m = self.rotation
+        return [Caption(c.text, c.number, _box(self.shown(pymupdf.Rect(c.bbox))),
+                        (c.direction[0] * m.a + c.direction[1] * m.c, c.direction[0] * m.b + c.direction[1] * m.d))
+                for c in self.captions]
 
     def filter_name(self, xref: int) -> str:
         if not xref:
@@ -123,24 +132,94 @@ def estimated_paths(pdf: pymupdf.Document, page: pymupdf.Page) -> int:
     return count
 
 
-def _adjacent(a: pymupdf.Rect, b: pymupdf.Rect) -> bool:
-    """Side by side or one above the other, close, and lined up along most of the shorter side."""
+def visible_drawings(page: pymupdf.Page) -> list[dict]:
+    """The page's painted paths, each rect cut to its clip path's box, paths clipped away dropped.
+
+    Plotting libraries draw a bar from zero and clip it at the axes, or a line beyond the axis
+    limits: the path's own rect then reaches far outside what is painted and would join the
+    chart to whatever lies there. Clip entries apply to the entries that follow at a deeper level.
+
+    Each path also gets "graphic": the number of the outermost clip smaller than the page that
+    holds it (an embedded graphic's bounding box clips all of its content), or None.
+    """
+    page_area = abs(page.cropbox.width * page.cropbox.height)
+    clips: list[tuple[int, pymupdf.Rect | None, int | None]] = []  # (level, visible area or None, graphic)
+    painted = []
+    for number, entry in enumerate(page.get_drawings(extended=True)):
+        level = entry.get("level", 0)
+        while clips and clips[-1][0] >= level:
+            clips.pop()
+        if entry["type"] == "clip":
+            scissor = pymupdf.Rect(entry["scissor"])
+            graphic = clips[-1][2] if clips else None
+            if clips:
+                scissor = None if clips[-1][1] is None else _cut(scissor, clips[-1][1])
+            if graphic is None and scissor is not None and \
+                    scissor.width * scissor.height < GRAPHIC_PAGE_SHARE * page_area:
+                graphic = number
+            clips.append((level, scissor, graphic))
+            continue
+        if entry["type"] not in ("f", "s", "fs"):
+            continue  # transparency groups carry no ink of their own
+        entry["graphic"] = clips[-1][2] if clips else None
+        if clips:
+            shown = None if clips[-1][1] is None else _cut(entry["rect"], clips[-1][1])
+            if shown is None:
+                continue  # wholly outside its clip: nothing is painted
+            entry["rect"] = shown
+        painted.append(entry)
+    return painted
+
+
+def _cut(rect: pymupdf.Rect, clip: pymupdf.Rect) -> pymupdf.Rect | None:
+    """rect within clip by coordinates (Rect's & rejects the zero-height rects of straight lines)."""
+    x0, y0, x1, y1 = max(rect.x0, clip.x0), max(rect.y0, clip.y0), min(rect.x1, clip.x1), min(rect.y1, clip.y1)
+    if x0 > x1 or y0 > y1:
+        return None
+    return pymupdf.Rect(x0, y0, x1, y1)
+
+
+def panel_letter(box: pymupdf.Rect, lines: list[TextLine]) -> str:
+    """The panel label ("a", "(b)", "c)", "(d) Catch by year") at the box's top or bottom edge, or ""."""
+    for line in lines:
+        match = PANEL_LABEL.match(line.text)
+        if not match:
+            continue
+        x0, y0, x1, y1 = line.bbox
+        cx, cy = (x0 + x1) / 2, (y0 + y1) / 2
+        band = max(0.25 * box.height, PANEL_GAP_PT)
+        if box.x0 - PANEL_GAP_PT <= cx <= box.x1 + PANEL_GAP_PT and \
+                (box.y0 - PANEL_GAP_PT <= cy <= box.y0 + band or box.y1 - band <= cy <= box.y1 + PANEL_GAP_PT):
+            return (match.group(1) or match.group(2)).lower()
+    return ""
+
+
+def _panels(a: pymupdf.Rect, b: pymupdf.Rect, lettered: bool) -> bool:
+    """Two figure boxes laid out as panels of one figure: close and on one grid (side by side with
+    a shared top or bottom edge, or stacked with a shared left or right edge); panels labelled
+    with different letters may sit further apart and need not line up."""
     gap_x = max(a.x0 - b.x1, b.x0 - a.x1)
     gap_y = max(a.y0 - b.y1, b.y0 - a.y1)
     overlap_x = min(a.x1, b.x1) - max(a.x0, b.x0)
     overlap_y = min(a.y1, b.y1) - max(a.y0, b.y0)
-    beside = 0 <= gap_x <= PANEL_GAP_PT and overlap_y >= 0.5 * min(a.height, b.height)
-    stacked = 0 <= gap_y <= PANEL_GAP_PT and overlap_x >= 0.5 * min(a.width, b.width)
+    limit = LETTERED_PANEL_GAP_PT if lettered else PANEL_GAP_PT
+    row = abs(a.y0 - b.y0) <= PANEL_ALIGN_PT or abs(a.y1 - b.y1) <= PANEL_ALIGN_PT
+    column = abs(a.x0 - b.x0) <= PANEL_ALIGN_PT or abs(a.x1 - b.x1) <= PANEL_ALIGN_PT
+    beside = 0 <= gap_x <= limit and overlap_y >= 0.5 * min(a.height, b.height) and (row or lettered)
+    stacked = 0 <= gap_y <= limit and overlap_x >= 0.5 * min(a.width, b.width) and (column or lettered)
     return beside or stacked
 
 
-def _attach_captions(boxes: list[pymupdf.Rect], identities: list[set], captions: list[Caption], gap: float
+def _attach_captions(boxes: list[pymupdf.Rect], identities: list[set], letters: list[str], graphics: list[set],
+                     captions: list[Caption], gap: float, text_boxes: list[tuple] | None
                      ) -> tuple[list[list[int]], list[Caption | None]]:
     """Caption per figure (displayed coordinates). An uncaptioned panel next to a captioned
-    figure joins it (a multi-panel figure with one caption is one figure) unless it shows the
-    same image (an image drawn twice is two figures). Returns groups of box indices and captions."""
+    figure joins it (a multi-panel figure with one caption is one figure), and so does an
+    uncaptioned part of the same embedded graphic, however far apart its panels are; not one
+    that shows the same image (an image drawn twice is two figures). Returns groups of box
+    indices and captions."""
     plain = [_box(b) for b in boxes]
-    assigned = assign_captions(plain, captions, gap)
+    assigned = assign_captions(plain, captions, gap, text_boxes)
     groups = [[i] for i in range(len(boxes))]
     changed = True
     while changed:  # panels may chain: a b c with the caption under c
@@ -153,12 +232,29 @@ def _attach_captions(boxes: list[pymupdf.Rect], identities: list[set], captions:
                     continue
                 if identities[g] and any(identities[g] & identities[m] for m in groups[f]):
                     continue
-                if any(_adjacent(boxes[m], boxes[g]) for m in groups[f]):
+                if any(graphics[g] & graphics[m] or
+                       _panels(boxes[m], boxes[g], bool(letters[m] and letters[g] and letters[m] != letters[g]))
+                       for m in groups[f]):
                     groups[f].append(g)
                     groups[g] = []
                     changed = True
     keep = [i for i in range(len(boxes)) if groups[i]]
     return [groups[i] for i in keep], [assigned[i] for i in keep]
+
+
+def _captioned_tables(reading: _Page, tables: list[Region], attachable: list[bool], captions: list[Caption],
+                      text_boxes: list[tuple]) -> list[tuple[Region, Caption]]:
+    """Tables and framed boxes that their authors captioned as figures ("Figure 3." under a drawn
+    table) are figures.
+
+    Only captions no figure took are offered, so a table never takes a figure's caption."""
+    if not tables or not captions:
+        return []
+    for table in tables:
+        attach_labels(table, reading.lines, attachable)
+    boxes = [_box(reading.shown(t.box)) for t in tables]
+    assigned = assign_captions(boxes, captions, reading.config.caption_gap_pt, text_boxes)
+    return [(table, caption) for table, caption in zip(tables, assigned) if caption is not None]
 
 
 LOSSY_FILTERS = ("DCTDecode", "JPXDecode")
@@ -195,7 +291,9 @@ def _scan_figures(reading: _Page, scan: PieceGroup) -> list[Figure]:
     whole = page.rect
     pixels = render_clip(page, whole, config.dpi)
     boxes = [pymupdf.Rect(b) for b in figure_boxes(pixels, config.dpi, config.min_figure_pt)]
-    groups, captions = _attach_captions(boxes, [set() for _ in boxes], reading.shown_captions(), config.caption_gap_pt)
+    nothing = [set() for _ in boxes]
+    groups, captions = _attach_captions(boxes, nothing, [""] * len(boxes), nothing, reading.shown_captions(),
+                                        config.caption_gap_pt, None)  # the page's text is in its pixels
     ppi = round(scan.effective_ppi(), 1)
     info = {**scan.info(reading.filter_name), "scan": True}
     scale = config.dpi / 72.0
@@ -238,7 +336,7 @@ def _page_figures(reading: _Page, infos: list[dict], repeated: set[tuple]) -> tu
 
     # Reading drawings costs ~25 us a path: count painting operators in the raw streams first.
     paths = estimated_paths(reading.pdf, page)
-    drawings = page.get_drawings() if paths <= config.max_paths_per_page else []
+    drawings = visible_drawings(page) if paths <= config.max_paths_per_page else []
     paths = max(paths, len(drawings))
     if paths > config.max_paths_per_page:
         reading.errors.append(f"page {reading.number}: about {paths} drawing paths exceed max_paths_per_page "
@@ -254,9 +352,13 @@ def _page_figures(reading: _Page, infos: list[dict], repeated: set[tuple]) -> tu
     if small:  # scattered pieces (frameless scatter plots) may form a figure at a wider distance
         regions = [r for r in regions if r.pictures or not set(r.paths) <= set(small)] + \
             group_ink(reading.bounds, drawings, [], SCATTER_MERGE_PT, small)
+    tables: list[Region] = []
     for region in regions:
         if not region.pictures:
-            if vector_verdict(region, drawings, reading.lines, config.min_figure_pt) != "figure":
+            verdict = vector_verdict(region, drawings, reading.lines, config.min_figure_pt)
+            if verdict in ("table", "frame"):
+                tables.append(region)  # a figure after all if its author captioned it as one
+            if verdict != "figure":
                 continue
             attach_labels(region, reading.lines, attachable)
         elif region.paths:
@@ -264,10 +366,15 @@ def _page_figures(reading: _Page, infos: list[dict], repeated: set[tuple]) -> tu
         else:
             attach_labels(region, reading.lines, [False] * len(reading.lines))  # text over the picture
         figures_found.append(region)
+    attach_titles(figures_found, reading.lines, attachable)
     figures_found = merge_overlapping(figures_found)
     shown_boxes = [reading.shown(r.box) for r in figures_found]
     identities = [{p.key for i in r.pictures for p in pictures[i].pieces} for r in figures_found]
-    groups, captions = _attach_captions(shown_boxes, identities, reading.shown_captions(), config.caption_gap_pt)
+    letters = [panel_letter(r.box, reading.lines) for r in figures_found]
+    text_boxes = [_box(reading.shown(pymupdf.Rect(line.bbox))) for line in reading.lines]
+    graphics = [{drawings[i]["graphic"] for i in r.paths} - {None} for r in figures_found]
+    groups, captions = _attach_captions(shown_boxes, identities, letters, graphics, reading.shown_captions(),
+                                        config.caption_gap_pt, text_boxes)
 
     merged: list[tuple[Region, Caption | None]] = []
     for members, caption in zip(groups, captions):
@@ -277,8 +384,10 @@ def _page_figures(reading: _Page, infos: list[dict], repeated: set[tuple]) -> tu
             region.paths += extra.paths
             region.pictures += extra.pictures
             region.labels += extra.labels
-            region.box |= extra.box
+            region.box = union((region.box, extra.box))
         merged.append((region, caption))
+    merged += _captioned_tables(reading, tables, attachable, [c for c in reading.shown_captions() if c not in captions],
+                                text_boxes)
     merged.sort(key=lambda rc: (reading.shown(rc[0].box).y0, reading.shown(rc[0].box).x0))
 
     scale = config.dpi / 72.0

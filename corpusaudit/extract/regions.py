@@ -5,18 +5,21 @@ mask, grows it by the merge distance and takes connected components: linear in t
 of paths, unlike pairwise clustering, whose cost grows at least quadratically. A region
 with a picture is a raster figure (vector axes and labels around a heatmap are part of it);
 a region of paths alone is a vector figure unless it looks like a table, a rule, a border
-or a frame around text.
+or a frame around text. Labels join a region when they lie inside it or within a tick
+label's distance of it; a chart title may sit further off when it is centred on the chart.
+Boxes are joined by coordinates (union), since straight lines have zero-width rects.
 """
 
 from __future__ import annotations
 
+from collections import Counter
 from dataclasses import dataclass, field
 
 import cv2
 import numpy as np
 import pymupdf
 
-from corpusaudit.extract.captions import TextLine
+from corpusaudit.extract.captions import TextLine, in_reading_frame, upright
 
 MASK_PX_PER_PT = 1.0
 PATH_MERGE_PT = 4.0  # paths closer than this belong to one drawing (ticks to axes, bars to baseline)
@@ -26,6 +29,8 @@ LABEL_MAX_CHARS = 60
 BACKGROUND_PAGE_SHARE = 0.8  # a path covering this much of the page is a page background
 SCATTER_MERGE_PT = 16.0  # markers of a frameless scatter plot, bars of a chart without axes lines
 TICK_MAX_PT = 9.0
+TITLE_CENTRE_SHARE = 0.15  # a chart title's centre lies this share of the chart's width from its centre
+TITLE_GAP_LINES = 1.5  # and at most this many of its own line heights from the chart's ink
 WHITE = 0.94  # fills this light carry no visible ink on white paper
 
 
@@ -35,6 +40,13 @@ class Region:
     pictures: list[int] = field(default_factory=list)  # indices into the page's piece groups
     box: pymupdf.Rect = field(default_factory=pymupdf.Rect)  # ink and labels, unrotated points
     labels: list[int] = field(default_factory=list)  # indices into the page's text lines
+
+
+def union(rects) -> pymupdf.Rect:
+    """The box around rects by coordinates: Rect's | drops the zero-width rects of straight lines."""
+    rects = list(rects)
+    return pymupdf.Rect(min(r.x0 for r in rects), min(r.y0 for r in rects),
+                        max(r.x1 for r in rects), max(r.y1 for r in rects))
 
 
 def _is_white(colour) -> bool:
@@ -95,17 +107,19 @@ def _paint(mask: np.ndarray, drawing: dict, page_area: float) -> None:
                 [item[1].tl, item[1].tr, item[1].br, item[1].bl, item[1].tl] if item[0] == "re" else \
                 [item[1].ul, item[1].ur, item[1].lr, item[1].ll, item[1].ul] if item[0] == "qu" else \
                 [item[1], item[4]]
-            polyline = np.array([[p.x * s, p.y * s] for p in points], dtype=np.int32)
-            cv2.polylines(mask, [polyline], False, 1, 1)
+            # drawn into the rect's window: a clipped outline paints nothing beyond its clip
+            polyline = np.array([[p.x * s - x0, p.y * s - y0] for p in points], dtype=np.int32)
+            cv2.polylines(mask[y0:y1 + 1, x0:x1 + 1], [polyline], False, 1, 1)
         return
     mask[y0:y1 + 1, x0:x1 + 1] = 1
 
 
 def _anchor(drawing: dict) -> tuple[int, int]:
-    """A pixel the path certainly painted (its first point or its box corner)."""
+    """A pixel the path certainly painted (its first point when not clipped away, else its box corner)."""
     rect = drawing["rect"]
     first = drawing["items"][0] if drawing["items"] else None
-    if first is not None and first[0] in ("l", "c"):
+    if first is not None and first[0] in ("l", "c") and rect.x0 <= first[1].x <= rect.x1 \
+            and rect.y0 <= first[1].y <= rect.y1:
         return int(first[1].x * MASK_PX_PER_PT), int(first[1].y * MASK_PX_PER_PT)
     return int(rect.x0 * MASK_PX_PER_PT), int(rect.y0 * MASK_PX_PER_PT)
 
@@ -146,11 +160,9 @@ def group_ink(bounds: pymupdf.Rect, drawings: list[dict], pictures: list[pymupdf
         label = int(labels[min(max(cy, 0), height - 1), min(max(cx, 0), width - 1)])
         regions.setdefault(label, Region()).pictures.append(index)
     for region in regions.values():
-        boxes = [drawings[i]["rect"] for i in region.paths] + [pictures[i] for i in region.pictures]
-        box = pymupdf.Rect(boxes[0])
-        for other in boxes[1:]:
-            box |= other
-        region.box = box & bounds
+        box = union([drawings[i]["rect"] for i in region.paths] + [pictures[i] for i in region.pictures])
+        region.box = pymupdf.Rect(max(box.x0, bounds.x0), max(box.y0, bounds.y0),
+                                  min(box.x1, bounds.x1), min(box.y1, bounds.y1))
     return list(regions.values())
 
 
@@ -185,11 +197,44 @@ def attach_labels(region: Region, lines: list[TextLine], attachable: list[bool])
                 continue
             if _inside(region.box, line.bbox) or (attachable[index] and _near(region.box, line.bbox, LABEL_GAP_PT)):
                 taken.add(index)
-                region.box |= pymupdf.Rect(line.bbox)
+                region.box = union((region.box, pymupdf.Rect(line.bbox)))
                 added = True
         if not added:
             break
     region.labels = sorted(taken)
+
+
+def attach_titles(regions: list[Region], lines: list[TextLine], attachable: list[bool]) -> None:
+    """Chart titles: a short line centred on a drawn region, above or below it, further off than
+    a tick label (pies and charts on transparent canvases leave a wide margin under the title).
+
+    A title is a text block of one line (a paragraph has more) with letters in it (not a page
+    number), no wider than its chart, centred on it, and within TITLE_GAP_LINES of its own
+    height; it goes to the nearest such region only."""
+    per_block = Counter(line.block for line in lines)
+    taken = {i for region in regions for i in region.labels}
+    for index, line in enumerate(lines):
+        if index in taken or not attachable[index] or per_block[line.block] > 1 \
+                or not any(ch.isalpha() for ch in line.text):
+            continue  # taken, body text, or a page number
+        frame = upright(line.direction)
+        lx0, ly0, lx1, ly1 = in_reading_frame(line.bbox, frame)
+        nearest = None
+        for region in regions:
+            if not region.paths:
+                continue  # a picture's title is in its pixels
+            x0, y0, x1, y1 = in_reading_frame(tuple(region.box), frame)
+            width = x1 - x0
+            if lx1 - lx0 > width or abs((lx0 + lx1 - x0 - x1) / 2) > TITLE_CENTRE_SHARE * width:
+                continue
+            gap = max(y0 - ly1, ly0 - y1)
+            if 0 <= gap <= TITLE_GAP_LINES * (ly1 - ly0) and (nearest is None or gap < nearest[0]):
+                nearest = (gap, region)
+        if nearest is not None:
+            region = nearest[1]
+            region.box = union((region.box, pymupdf.Rect(line.bbox)))
+            region.labels = sorted(set(region.labels) | {index})
+            taken.add(index)
 
 
 def merge_overlapping(regions: list[Region]) -> list[Region]:
@@ -204,7 +249,7 @@ def merge_overlapping(regions: list[Region]) -> list[Region]:
                     regions[i].paths += regions[j].paths
                     regions[i].pictures += regions[j].pictures
                     regions[i].labels = sorted(set(regions[i].labels) | set(regions[j].labels))
-                    regions[i].box = a | b
+                    regions[i].box = union((a, b))
                     del regions[j]
                     merged = True
                     break
@@ -218,9 +263,7 @@ def vector_verdict(region: Region, drawings: list[dict], lines: list[TextLine], 
     inked = [drawings[i] for i in region.paths if visible(drawings[i])]
     if not inked:
         return "blank"
-    ink = pymupdf.Rect(inked[0]["rect"])
-    for drawing in inked[1:]:
-        ink |= drawing["rect"]
+    ink = union(d["rect"] for d in inked)
     if min(region.box.width, region.box.height) < min_size or max(ink.width, ink.height) < min_size:
         return "small"
     if not all(_rectilinear(d) for d in inked):
