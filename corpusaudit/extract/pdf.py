@@ -8,6 +8,7 @@ pixels are those of the page as displayed (/Rotate applied).
 
 from __future__ import annotations
 
+import functools
 import math
 import re
 
@@ -60,9 +61,11 @@ def effective_ppi(width_px: int, height_px: int, transform: tuple[float, ...]) -
     return min(width_px / along_x, height_px / along_y)
 
 
-def render_clip(page: pymupdf.Page, shown: pymupdf.Rect, dpi: int) -> np.ndarray:
-    """Pixels of a displayed-page rectangle (get_pixmap's clip is in displayed coordinates)."""
-    pix = page.get_pixmap(dpi=dpi, clip=shown, alpha=False, colorspace=pymupdf.csRGB)
+def render_clip(display: pymupdf.DisplayList, shown: pymupdf.Rect, dpi: int) -> np.ndarray:
+    """Pixels of a displayed-page rectangle (the clip is in displayed coordinates), drawn from
+    the page's display list, as Page.get_pixmap does, but interpreted once for all figures."""
+    zoom = dpi / 72.0
+    pix = display.get_pixmap(matrix=pymupdf.Matrix(zoom, zoom), clip=shown, alpha=False, colorspace=pymupdf.csRGB)
     return np.frombuffer(pix.samples, dtype=np.uint8).reshape(pix.height, pix.width, pix.n)[:, :, :3].copy()
 
 
@@ -103,6 +106,11 @@ class _Page:
         self.lines = text_lines(self.text)
         self.captions = caption_candidates(self.lines, pattern)
         self.errors: list[str] = []
+
+    @functools.cached_property
+    def display(self) -> pymupdf.DisplayList:
+        """The page's drawing commands, interpreted once however many figures are rendered."""
+        return self.page.get_displaylist()
 
     def shown(self, rect: pymupdf.Rect) -> pymupdf.Rect:
         return pymupdf.Rect(rect) * self.rotation
@@ -289,7 +297,7 @@ def _scan_figures(reading: _Page, scan: PieceGroup) -> list[Figure]:
     """Figure regions inside a page that is one picture."""
     page, config = reading.page, reading.config
     whole = page.rect
-    pixels = render_clip(page, whole, config.dpi)
+    pixels = render_clip(reading.display, whole, config.dpi)
     boxes = [pymupdf.Rect(b) for b in figure_boxes(pixels, config.dpi, config.min_figure_pt)]
     nothing = [set() for _ in boxes]
     groups, captions = _attach_captions(boxes, nothing, [""] * len(boxes), nothing, reading.shown_captions(),
@@ -394,7 +402,7 @@ def _page_figures(reading: _Page, infos: list[dict], repeated: set[tuple]) -> tu
     figures = []
     for region, caption in merged:
         shown = reading.shown(region.box)
-        pixels = render_clip(page, shown, config.dpi)
+        pixels = render_clip(reading.display, shown, config.dpi)
         evidence = vector_evidence(page, region.box, scale, drawings=drawings, text=reading.text) \
             if region.paths or region.labels else None
         if region.pictures:
