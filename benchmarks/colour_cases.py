@@ -96,6 +96,12 @@ def text_colour_for(rng: np.random.Generator, background: str, low: bool) -> tup
 # ------------------------------------------------------------------ families
 
 
+def draw_rng(index: int) -> np.random.Generator:
+    """Randomness used while drawing case index: the same on every rendering of the case
+    (its vector and raster figures show one chart), whatever was rendered before."""
+    return np.random.default_rng(index)
+
+
 def scale_case(rng: np.random.Generator, index: int) -> ColourCase:
     """Heatmap, map or colour-coded scatter with a continuous colour map (and usually a bar)."""
     rainbow = bool(rng.random() < 0.45)
@@ -112,13 +118,14 @@ def scale_case(rng: np.random.Generator, index: int) -> ColourCase:
     horizontal = bool(rng.random() < 0.3)
 
     def draw(fig):
+        noise = draw_rng(index)
         ax = fig.add_subplot()
         if kind == "heatmap":
             artist = ax.pcolormesh(field_, cmap=cmap) if mesh else ax.imshow(field_, cmap=cmap, aspect="auto")
             ax.set_xlabel("Station")
             ax.set_ylabel("Week")
         elif kind == "scatter":
-            artist = ax.scatter(xy[0], xy[1], c=xy[0] * xy[1] + rng.normal(0, 3, n_points), cmap=cmap, s=18)
+            artist = ax.scatter(xy[0], xy[1], c=xy[0] * xy[1] + noise.normal(0, 3, n_points), cmap=cmap, s=18)
             ax.set_xlabel("Depth (m)")
             ax.set_ylabel("Salinity")
         else:  # a map of invented cells: a jittered grid of polygons
@@ -126,9 +133,9 @@ def scale_case(rng: np.random.Generator, index: int) -> ColourCase:
             polys, vals = [], []
             for r in range(8):
                 for c in range(10):
-                    jitter = rng.uniform(-0.25, 0.25, (4, 2))
+                    jitter = noise.uniform(-0.25, 0.25, (4, 2))
                     polys.append(np.array([[c, r], [c + 1, r], [c + 1, r + 1], [c, r + 1]]) + jitter)
-                    vals.append(np.sin(r / 2.5) + np.cos(c / 3.0) + rng.normal(0, 0.2))
+                    vals.append(np.sin(r / 2.5) + np.cos(c / 3.0) + noise.normal(0, 0.2))
             artist = PolyCollection(polys, array=np.array(vals), cmap=cmap, edgecolors="white", linewidths=0.4)
             ax.add_collection(artist)
             ax.set_xlim(-0.5, 10.5)
@@ -154,6 +161,7 @@ def categorical_case(rng: np.random.Generator, index: int) -> ColourCase:
     legend = bool(rng.random() < 0.6)
 
     def draw(fig):
+        noise = draw_rng(index)
         ax = fig.add_subplot()
         if kind == "bar":
             width = 0.8 / k
@@ -167,8 +175,8 @@ def categorical_case(rng: np.random.Generator, index: int) -> ColourCase:
             ax.pie(data[:, 0], colors=palette, labels=names, wedgeprops={"edgecolor": "white", "linewidth": 1})
         else:
             for s in range(k):
-                centre = rng.uniform(2, 8, 2)
-                points = centre + rng.normal(0, 1.0, (25, 2))
+                centre = noise.uniform(2, 8, 2)
+                points = centre + noise.normal(0, 1.0, (25, 2))
                 ax.scatter(points[:, 0], points[:, 1], color=palette[s], s=40, label=names[s])
         if legend and kind != "pie":
             ax.legend(fontsize="small")

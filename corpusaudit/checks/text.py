@@ -89,13 +89,17 @@ def smallest_text(lines, per_size_minimum: int):
         Option("min_pt", 6.0, "smallest text size (points at print size) that passes",
                "common practice for print: journals ask for 6-8 pt as the smallest lettering", minimum=0.0),
         Option("raster_agreeing_words", 2,
-               "raster text: this many text lines must be below the limit before it warns", minimum=1),
+               "raster text: this many short lines (under raster_word_glyphs glyphs) must be below the limit "
+               "before it warns", minimum=1),
+        Option("raster_word_glyphs", 3,
+               "raster text: a line of this many glyphs is below the limit on its own", minimum=2),
     ),
     rationale="""Text below about 6 pt at the size the figure is printed cannot be read comfortably,
         and thin strokes may vanish in print. Vector text states its size; raster text size is
         estimated from the height of its capitals, digits or short letters (found from the glyph
         shapes, not read) and the figure's print size, so single
-        stray glyphs are ignored and several words must agree before a raster warns. Image files
+        stray glyphs are ignored, and a raster warns on a line of several glyphs or on several
+        short lines that agree (two marks side by side can pass for a short word). Image files
         have no print size and are not judged.""",
     fix="""Enlarge the labels (or draw the chart at its final size so the fonts are not scaled
         down), aiming at 7-9 pt for tick labels and more for titles.""",
@@ -115,7 +119,10 @@ def text_size(ctx: CheckContext) -> Outcome:
     limit = ctx.options["min_pt"]
     below = [line for line in ordered if line.size_pt < limit]
     raster = ordered[0].source == "glyphs"
-    if not below or (raster and len(below) < ctx.options["raster_agreeing_words"]):
+    if not below:
+        return Outcome()
+    if raster and len(below) < ctx.options["raster_agreeing_words"] \
+            and max(line.glyphs for line in below) < ctx.options["raster_word_glyphs"]:
         return Outcome()
     smallest = below[0]
     name, estimated = (smallest.text, "about ") if raster else (f"'{smallest.text}'", "")

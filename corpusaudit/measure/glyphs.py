@@ -44,6 +44,11 @@ UNIFORM_SHARE = 0.6  # this share of a line's surround matches its modal colour:
 INNER_UNIFORM_SHARE = 0.8  # ... and this share of the pixels between its letters
 BACKGROUND_TOLERANCE = 24  # grey levels per channel: JPEG noise around a flat colour stays within
 HEIGHT_RATIO = 2.2  # a descender letter against an x-height letter is ~1.4; more is another line
+SHAPE_PX = 12  # marks are compared as 12x12 resamplings of their contrast ...
+SAME_SHAPE = 0.9  # ... and are the same mark above this correlation (distinct letters: well below)
+MIN_ROTATED_GLYPHS = 3  # a rotated line of two marks is mostly two stacked markers, not a word
+MARK_REPEATS = 10  # a symmetric shape seen this often (itself included) is a scatter's marker
+CLEAR_SHARE = 0.85  # of a line's surround (outside its box) is its background: other marks keep off text
 
 # Ink heights in em, measured with Pillow on DejaVu Sans (matplotlib's default font):
 # capitals 0.729, digits 0.729-0.756, ascenders (b, d, h, k, l) 0.76-0.77; x-height letters
@@ -110,17 +115,16 @@ def local_background(grey: np.ndarray) -> np.ndarray:
     return cv2.resize(samples, (width, height), interpolation=cv2.INTER_LINEAR)
 
 
-def _depth(mask: np.ndarray, steps: int = TOPHAT_PX // 2 + 1) -> np.ndarray:
-    """Chessboard distance of each ink pixel from the nearest non-ink pixel (1 on an edge),
-    counted by repeated 3x3 erosions up to steps (strokes wider than the top-hat are gone)."""
-    depth = mask.copy()
-    eroded = mask
-    for _ in range(steps - 1):
-        eroded = cv2.erode(eroded, None)
-        if not eroded.any():
+def _per_label_max(labels: np.ndarray, values: np.ndarray, count: int, levels: range) -> np.ndarray:
+    """Per label, the highest of levels that some of its pixels' values reach (0 if none):
+    one bincount per level, far cheaper than an unbuffered maximum.at over every pixel."""
+    best = np.zeros(count, dtype=np.int32)
+    for level in levels:
+        reached = np.bincount(labels[values >= level], minlength=count) > 0
+        if not reached.any():
             break
-        depth += eroded
-    return depth
+        best[reached] = level
+    return best
 
 
 def _components(contrast: np.ndarray, thin_contrast: np.ndarray, dark: bool, max_height: float) -> _Components:
@@ -129,36 +133,32 @@ def _components(contrast: np.ndarray, thin_contrast: np.ndarray, dark: bool, max
     which keeps bars, cells and wedges (wider than any stroke) out of the ink."""
     half_peak = cv2.dilate(contrast, np.ones((5, 5), np.uint8)) >> 1
     ink = (cv2.min(contrast, thin_contrast) >= MIN_CONTRAST) & (contrast >= half_peak)
-    mask = ink.view(np.uint8)
-    points = cv2.findNonZero(mask) if cv2.countNonZero(mask) >= 4 else None
-    if points is None:
-        labels = np.zeros(mask.shape, dtype=np.int32)
-        empty = np.zeros(0, dtype=np.int64)
-        return _Components(labels, empty, empty, empty, empty, empty, empty.astype(float), empty, contrast, dark,
-                           max_height)
-    count, labels = cv2.connectedComponents(mask, connectivity=8)
-    points = points.reshape(-1, 2)
+    # Plain labelling and boxes from the ink pixels: connectedComponentsWithStats takes
+    # several times longer on a figure than both together.
+    count, labels = cv2.connectedComponents(ink.view(np.uint8), connectivity=8)
+    points = cv2.findNonZero(ink.view(np.uint8))
+    points = np.zeros((0, 2), np.int64) if points is None else points.reshape(-1, 2).astype(np.int64)
     xs, ys = points[:, 0], points[:, 1]
     member = labels[ys, xs]
     area = np.bincount(member, minlength=count)
-    x0 = np.full(count, mask.shape[0] + mask.shape[1], dtype=np.int32)
+    x0 = np.full(count, sum(ink.shape), dtype=np.int64)  # the dtype of xs: ufunc.at is slow when it casts
     y0 = x0.copy()
-    x1 = np.zeros(count, dtype=np.int32)
+    x1 = np.zeros(count, dtype=np.int64)
     y1 = x1.copy()
     np.minimum.at(x0, member, xs)
     np.minimum.at(y0, member, ys)
     np.maximum.at(x1, member, xs + 1)
     np.maximum.at(y1, member, ys + 1)
-    # Stroke widths are read on all of the contrast, top-hat or not: a filled marker that the
-    # top-hat hollows to a ring is still thick there.
-    widest = np.zeros(count, dtype=np.uint8)
-    np.maximum.at(widest, member, _depth((contrast >= MIN_CONTRAST).view(np.uint8))[ys, xs])
-    strongest = np.zeros(count, dtype=np.uint8)
-    np.maximum.at(strongest, member, contrast[ys, xs])
     w, h = x1 - x0, y1 - y0
-    stroke = 2.0 * widest.astype(float) - 1.0
+    # Stroke widths are read on all of the contrast, top-hat or not: a filled marker that the
+    # top-hat hollows to a ring is still thick there. Depth: chessboard distance of an ink
+    # pixel from the nearest pixel off the contrast (1 on an edge), up to half the top-hat.
+    depth = cv2.distanceTransform((contrast >= MIN_CONTRAST).view(np.uint8), cv2.DIST_C, 3)[ys, xs]
+    widest = _per_label_max(member, depth, count, range(1, TOPHAT_PX // 2 + 2))
+    strong = np.bincount(member[contrast[ys, xs] >= 2 * MIN_CONTRAST], minlength=count) > 0
+    stroke = 2.0 * widest - 1.0
     chosen = (h >= MIN_GLYPH_PX) & (h <= max_height) & (w <= 12 * h) & (area >= 4) \
-        & (stroke <= np.maximum(1.0, STROKE_SHARE * h)) & (strongest >= 2 * MIN_CONTRAST)
+        & (stroke <= np.maximum(1.0, STROKE_SHARE * h)) & strong
     chosen[0] = False
     return _Components(labels, np.flatnonzero(chosen), x0[chosen], y0[chosen], x1[chosen], y1[chosen],
                        stroke[chosen], area[chosen], contrast, dark, max_height)
@@ -221,28 +221,67 @@ def _union_find(n: int, first: np.ndarray, second: np.ndarray) -> np.ndarray:
     return np.array([root(node) for node in range(n)], dtype=np.int64)
 
 
+def _shape(parts: _Components, k: int) -> np.ndarray:
+    """A component's contrast in its box, blurred by a pixel (so the same mark at another
+    sub-pixel offset still matches) and resampled to SHAPE_PX square, zero mean, unit norm."""
+    x0, y0, x1, y1 = parts.x0[k], parts.y0[k], parts.x1[k], parts.y1[k]
+    own = parts.labels[y0:y1, x0:x1] == parts.ids[k]
+    patch = np.pad(np.where(own, parts.contrast[y0:y1, x0:x1], 0).astype(np.float32), 2)
+    patch = cv2.resize(cv2.GaussianBlur(patch, (0, 0), 1.0), (SHAPE_PX, SHAPE_PX), interpolation=cv2.INTER_AREA)
+    patch -= patch.mean()
+    return patch / max(float(np.linalg.norm(patch)), 1e-6)
+
+
 def _repeated_marks(parts: _Components, members: np.ndarray) -> bool:
-    """Every member the same shape: a row of markers, dashes or grid crossings, not letters.
-    Same-sized boxes are compared pixel by pixel (intersection over union of the ink). Two
-    alike glyphs with a mark low between them are a decimal number ('0.0'), not marks."""
+    """Every member the same mirror-symmetric shape: a row of markers (circles, squares,
+    crosses, triangles), dashes or grid crossings, not letters. Boxes agree in size (within a
+    pixel or 10%), shapes correlate, and all are symmetric about the same axis: distinct
+    letters of one size can correlate as well as one mark at two sub-pixel offsets (a/g,
+    Q/S at 12 px), but not while sharing a mirror axis. Two alike glyphs with a mark low
+    between them are a decimal number ('0.0'), not marks."""
     width, height = parts.x1[members] - parts.x0[members], parts.y1[members] - parts.y0[members]
-    if np.ptp(width) > 1 or np.ptp(height) > 1:
-        return False
-    w, h = int(width.min()), int(height.min())
-
-    def ink(k: int) -> np.ndarray:
-        x0, y0 = parts.x0[k], parts.y0[k]
-        return parts.labels[y0:y0 + h, x0:x0 + w] == parts.ids[k]
-
-    first = ink(int(members[0]))
-    for k in members[1:]:
-        other = ink(int(k))
-        if np.count_nonzero(first & other) < 0.8 * np.count_nonzero(first | other):
+    for size in (width, height):
+        if np.ptp(size) > max(1.0, 0.1 * float(size.max())):
             return False
-    if len(members) == 2:
-        left, right = sorted(members.tolist(), key=lambda k: parts.x0[k])
-        gap = parts.labels[parts.y1[left] - max(1, h // 4):parts.y1[left], parts.x1[left]:parts.x0[right]]
-        if gap.size and gap.any():
+    shapes = [_shape(parts, int(k)) for k in members]
+    if any(float(np.vdot(shapes[0], other)) < SAME_SHAPE for other in shapes[1:]):
+        return False
+    if not any(all(float(np.vdot(shape, np.flip(shape, axis))) >= SAME_SHAPE for shape in shapes) for axis in (0, 1)):
+        return False
+    return not _decimal(parts, members)
+
+
+def _symmetric(shape: np.ndarray) -> bool:
+    return any(float(np.vdot(shape, np.flip(shape, axis))) >= SAME_SHAPE for axis in (0, 1))
+
+
+def _decimal(parts: _Components, members: np.ndarray) -> bool:
+    """Two glyphs with a mark low between them: a decimal number ('0.0')."""
+    if len(members) != 2:
+        return False
+    h = int((parts.y1[members] - parts.y0[members]).min())
+    left, right = sorted(members.tolist(), key=lambda k: parts.x0[k])
+    gap = parts.labels[parts.y1[left] - max(1, h // 4):parts.y1[left], parts.x1[left]:parts.x0[right]]
+    return bool(gap.size and gap.any())
+
+
+def _markers(parts: _Components, members: np.ndarray) -> bool:
+    """Every member a mirror-symmetric mark repeated MARK_REPEATS times or more in the figure
+    (a marker of a dense scatter, where marks fall into rows by chance). Letters recur too,
+    but a line made only of symmetric ones that often ('o', '0', 'x') is rare."""
+    if _decimal(parts, members):
+        return False
+    width, height = parts.x1 - parts.x0, parts.y1 - parts.y0
+    for k in members.tolist():
+        alike = np.flatnonzero((np.abs(width - width[k]) <= 1) & (np.abs(height - height[k]) <= 1))
+        if len(alike) < MARK_REPEATS:
+            return False
+        shape = _shape(parts, k)
+        if not _symmetric(shape):
+            return False
+        nearest = alike[np.argsort(np.abs(parts.x0[alike] - parts.x0[k]) + np.abs(parts.y0[alike] - parts.y0[k]))]
+        same = sum(float(np.vdot(shape, _shape(parts, int(j)))) >= SAME_SHAPE for j in nearest[:3 * MARK_REPEATS])
+        if same < MARK_REPEATS:
             return False
     return True
 
@@ -307,7 +346,11 @@ def _colours(rgb: np.ndarray, parts: _Components, members: np.ndarray, box: tupl
     inner[y0 - Y0:y1 - Y0, x0 - X0:x1 - X0] = True
     # Between letters and inside their counters lies the background itself; the inside
     # of a ring of markers or the cells under marks is some other colour.
-    for region, share in ((~near_ink, UNIFORM_SHARE), (inner & ~near_ink, INNER_UNIFORM_SHARE)):
+    # Around text lies its background, bar a neighbouring line or an axis; a cluster of
+    # markers that passes for a word has more markers all round it (other ink counts here).
+    near_own = cv2.dilate(ink_mask.view(np.uint8), np.ones((3, 3), np.uint8)).astype(bool)
+    for region, share in ((~near_ink, UNIFORM_SHARE), (inner & ~near_ink, INNER_UNIFORM_SHARE),
+                          (~inner & ~near_own, CLEAR_SHARE)):
         if np.count_nonzero(alike & region) < share * np.count_nonzero(region):
             return None
     # Strokes are thin, so all of a glyph's contrast is in its thin ink; marks wider than the
@@ -334,7 +377,8 @@ def find_text_lines(rgb: np.ndarray) -> list[GlyphLine]:
         free = np.ones(len(parts.ids), dtype=bool)
         for angle in ORIENTATIONS:
             along0, along1, top, bottom = _frame(parts, angle)
-            candidates = np.flatnonzero(free)
+            # Glyphs too thin across the line (page width, when rotated) are dots and rules.
+            candidates = np.flatnonzero(free & (bottom - top >= MIN_GLYPH_PX))
             groups = _link(along0, along1, top, bottom, candidates)
             sizes = np.bincount(groups, minlength=len(candidates))
             wide = (along1 - along0)[candidates] >= 1.5 * (bottom - top)[candidates]
@@ -357,7 +401,8 @@ def find_text_lines(rgb: np.ndarray) -> list[GlyphLine]:
 def _tick_label_rows(parts: _Components, free: np.ndarray) -> list[np.ndarray]:
     """Single-glyph labels (tick labels '0', '2', '4'...) that no word holds: three or more
     glyphs of one height, bottom-aligned in a row or right-aligned in a column, at regular
-    steps of two heights or more. Rows of one repeated shape are marks (see _repeated_marks)."""
+    steps (or whole multiples of one step) of two heights or more, with nothing between them.
+    Rows of one repeated shape are marks (see _repeated_marks)."""
     width, height = parts.x1[free] - parts.x0[free], parts.y1[free] - parts.y0[free]
     single = free[(width <= 1.2 * height) & (width >= 0.3 * height)]
     found = []
@@ -374,9 +419,30 @@ def _tick_label_rows(parts: _Components, free: np.ndarray) -> list[np.ndarray]:
             run = run[np.argsort(centre[run])]
             steps = np.diff(centre[run])
             tall = float((parts.y1[run] - parts.y0[run]).max())
-            if steps.min() >= 2 * tall and np.ptp(steps) <= 0.1 * np.median(steps):
+            # Regular steps, or whole multiples of the smallest (a label not found between).
+            if steps.min() < 2 * tall:
+                continue
+            multiples = steps / steps.min()
+            if np.abs(multiples - np.round(multiples)).max() <= 0.1 \
+                    and _clear_between(parts, run, across_rows=edge is parts.y1):
                 found.append(run)
     return found
+
+
+def _clear_between(parts: _Components, run: np.ndarray, across_rows: bool) -> bool:
+    """Nothing of the labels' polarity between consecutive labels of a run (ordered along it):
+    tick labels stand apart, while crossings of dashed grid lines, also at regular steps, lie
+    on the dashes that join them."""
+    for a, b in zip(run[:-1].tolist(), run[1:].tolist()):
+        if across_rows:
+            top, bottom = max(parts.y0[a], parts.y0[b]), min(parts.y1[a], parts.y1[b])
+            corridor = parts.labels[top:bottom, parts.x1[a]:parts.x0[b]]
+        else:
+            left, right = max(parts.x0[a], parts.x0[b]), min(parts.x1[a], parts.x1[b])
+            corridor = parts.labels[parts.y1[a]:parts.y0[b], left:right]
+        if corridor.size == 0 or np.count_nonzero(corridor) > 0.02 * corridor.size:
+            return False
+    return True
 
 
 def _line(rgb, parts: _Components, members: np.ndarray, angle: int, along0, along1, top, bottom,
@@ -390,7 +456,9 @@ def _line(rgb, parts: _Components, members: np.ndarray, angle: int, along0, alon
     if len(members) == 1:
         if angle != 0 or not _merged_word(parts, int(members[0])):
             return None
-    elif _repeated_marks(parts, members):
+    elif angle != 0 and len(members) < MIN_ROTATED_GLYPHS:
+        return None
+    elif _repeated_marks(parts, members) or _markers(parts, members):
         return None
     if labels_apart:
         members = members[np.argsort(along0[members])]
