@@ -34,7 +34,7 @@ def _parser() -> argparse.ArgumentParser:
 
     train = commands.add_parser("train", help="rebuild the chart-type classifier from generated data")
     train.add_argument("--out", required=True, type=Path, metavar="FILE")
-    train.add_argument("--samples", type=int, default=250, metavar="N", help="generated figures per label")
+    train.add_argument("--samples", type=int, default=400, metavar="N", help="generated figures per label")
     train.add_argument("--seed", type=int, default=0, metavar="S")
     train.add_argument("--extra", type=Path, action="append", default=[], metavar="DIR",
                        help="your own labelled figures: DIR/<chart type>/*.png (repeatable)")

@@ -146,6 +146,52 @@ def test_untrusted_type_inside_model_is_refused(tmp_path):
         load_classifier(odd)
 
 
+def _marks(image: np.ndarray) -> dict[str, float]:
+    return {name: value for name, value in zip(features.feature_names(), features.extract(image))
+            if name.startswith("mark_")}
+
+
+def _canvas_with_grid() -> np.ndarray:
+    # 320 px wide: the working size, so no resampling blurs the drawn marks
+    import cv2
+
+    img = np.full((240, 320, 3), 255, np.uint8)
+    for x in range(20, 320, 40):
+        cv2.line(img, (x, 0), (x, 239), (120, 120, 120), 1)
+    for y in range(20, 240, 40):
+        cv2.line(img, (0, y), (319, y), (120, 120, 120), 1)
+    return img
+
+
+def test_mark_features_count_isolated_markers():
+    # Worked example: 5 x 4 filled and 5 x 4 hollow circles, well apart, on a grid of rules.
+    import cv2
+
+    img = _canvas_with_grid()
+    for k in range(20):
+        cv2.circle(img, (30 + (k % 5) * 60, 30 + (k // 5) * 25), 3, (30, 60, 200), -1)
+    for k in range(20):
+        cv2.circle(img, (30 + (k % 5) * 60, 140 + (k // 5) * 25), 5, (200, 60, 30), 1)
+    marks = _marks(img)
+    assert marks["mark_log_dots"] == pytest.approx(np.log1p(40))
+    assert marks["mark_dot_hollow"] == pytest.approx(0.5)
+    assert marks["mark_log_strokes"] == 0
+
+
+def test_mark_features_keep_a_curve_crossing_grid_rules_in_one_piece():
+    # A polyline across the plot crosses every rule; removing the rules must not cut it into dots.
+    import cv2
+
+    img = _canvas_with_grid()
+    xs = np.arange(10, 311, 10)
+    ys = (120 + 60 * np.sin(xs / 40)).astype(int)
+    cv2.polylines(img, [np.c_[xs, ys].astype(np.int32)], False, (30, 60, 200), 2)
+    marks = _marks(img)
+    assert marks["mark_log_strokes"] == pytest.approx(np.log1p(1))
+    assert marks["mark_longest_extent"] > 0.9
+    assert marks["mark_stroke_share"] > 0.9
+
+
 def test_tiny_training_smoke(tmp_path, monkeypatch):
     from corpusaudit.classify import train as train_module
 
@@ -160,6 +206,7 @@ def test_tiny_training_smoke(tmp_path, monkeypatch):
     report = train_module.train(out, samples_per_class=5, seed=3, extra_dirs=[extra])
     assert report.samples == 51 and report.extra_samples == 1
     assert report.sha256 == hashlib.sha256(out.read_bytes()).hexdigest()
+    assert report.cv_macro_f1 == report.cv_scores["logistic_regression"]
     rows = train_module.classify_paths([extra / "pie" / "house_pie.png", tmp_path / "missing.png"], out)
     assert rows[0]["chart_type"] in CHART_TYPES and rows[0]["error"] == ""
     assert rows[1]["chart_type"] == "" and "missing.png" in rows[1]["error"]

@@ -13,6 +13,9 @@ features do not depend on resolution. Groups (names prefixed accordingly):
   radial_  structure around the filled regions' centre: radial/tangential edges, colour sectors
   hough_   straight-line evidence (axes, gridlines, table rules)
   text_    text-likeness: small components aligned in rows
+  mark_    connectivity of the marks once axis and grid rules are removed: scatter marks are many
+           isolated small blobs spread over the plot area, line marks are long thin connected strokes,
+           box outliers sit in columns; soft halos (glow of stars, photo detail) vs crisp drawn marks
   sym_     mirror symmetry
 """
 
@@ -21,7 +24,7 @@ from __future__ import annotations
 import cv2
 import numpy as np
 
-FEATURE_VERSION = 2
+FEATURE_VERSION = 3
 WORK_SIDE = 320
 HOG_CELL = 16  # 64x64 thumbnail -> 4x4 cells, 2x2-cell blocks (Dalal & Triggs 2005 layout)
 HOG_BINS = 9
@@ -95,6 +98,60 @@ def _profile_steps(mask: np.ndarray) -> list[float]:
     jumps = float((d > 2).mean())
     small = float(((d > 0) & (d <= 2)).mean())
     return [flat, jumps, small]
+
+
+MARK_NAMES = ["log_dots", "dot_share", "dot_cells", "dot_inner", "dot_area_cv", "dot_row_aligned",
+              "dot_col_aligned", "dot_hollow", "log_strokes", "stroke_share", "longest_extent", "longest_fill",
+              "longest_thickness", "log_halo_ratio"]
+DOT_SIDE = 16  # px at WORK_SIDE, after a 1 px dilation: a marker or a glyph, not a stroke across the plot
+
+
+def _marks(diff: np.ndarray, ink: np.ndarray) -> list[float]:
+    """Connected components of ink after removing long horizontal/vertical rules (axes, grids, frames)."""
+    h, w = ink.shape
+    ink8 = ink.astype(np.uint8)
+    rule_len = max(12, min(h, w) // 6)
+    rules = cv2.morphologyEx(ink8, cv2.MORPH_OPEN, np.ones((1, rule_len), np.uint8)) | \
+        cv2.morphologyEx(ink8, cv2.MORPH_OPEN, np.ones((rule_len, 1), np.uint8))
+    marks = ink8 & (1 - rules)
+    # removing a rule also cuts every curve that crosses it: bridge gaps of up to 2 px again
+    n, labels, stats, cents = cv2.connectedComponentsWithStats(cv2.dilate(marks, np.ones((3, 3), np.uint8)),
+                                                               connectivity=8)
+    own_ink = np.bincount(labels[marks > 0], minlength=n)[1:]  # undilated pixels: rings stay hollow
+    stats, cents = stats[1:], cents[1:]
+    keep = stats[:, 4] >= 12  # a single dilated pixel (9 px) is noise or JPEG ringing
+    stats, cents, own_ink = stats[keep], cents[keep], own_ink[keep]
+    total = max(int(stats[:, 4].sum()), 1)
+    extent = np.maximum(stats[:, 2], stats[:, 3])
+    dots = extent <= DOT_SIDE
+    strokes = extent >= 0.2 * min(h, w)
+    vals = [0.0] * len(MARK_NAMES)
+    vals[0] = np.log1p(dots.sum())
+    vals[1] = stats[dots, 4].sum() / total
+    if dots.sum() >= 3:
+        cx, cy = cents[dots, 0], cents[dots, 1]
+        cells = np.unique((np.minimum(cy / h * 8, 7).astype(int)) * 8 + np.minimum(cx / w * 8, 7).astype(int))
+        vals[2] = cells.size / 64  # spread over the figure in 2D: scatter fills many cells, text a few rows
+        vals[3] = float(((cx > 0.15 * w) & (cx < 0.85 * w) & (cy > 0.1 * h) & (cy < 0.85 * h)).mean())
+        areas = stats[dots, 4].astype(np.float64)
+        vals[4] = float(areas.std() / areas.mean())
+        rows = np.bincount((cy // 3).astype(int))
+        cols = np.bincount((cx // 3).astype(int))
+        vals[5] = float(rows[rows >= 4].sum() / cy.size)
+        vals[6] = float(cols[cols >= 4].sum() / cx.size)
+        box = ((stats[dots, 2] - 2) * (stats[dots, 3] - 2)).clip(1).astype(np.float64)  # undo the dilation
+        # rings and hollow squares (and some glyphs such as o)
+        vals[7] = float(((own_ink[dots] / box < 0.55) & (extent[dots] >= 7)).mean())
+    vals[8] = np.log1p(strokes.sum())
+    vals[9] = stats[strokes, 4].sum() / total
+    if stats.shape[0]:
+        k = int(extent.argmax())
+        bw, bh, area = float(stats[k, 2]), float(stats[k, 3]), float(stats[k, 4])
+        vals[10] = extent[k] / max(h, w)
+        vals[11] = area / (bw * bh)
+        vals[12] = area / max(extent[k], 1)  # mean stroke width if the component is one stroke
+    vals[13] = float(np.log1p(((diff > 15) & (diff <= 40)).sum() / max(int(ink.sum()), 1)))
+    return [float(v) for v in vals]
 
 
 def extract(rgb: np.ndarray) -> np.ndarray:
@@ -302,6 +359,8 @@ def _extract(rgb: np.ndarray) -> tuple[list[str], np.ndarray]:
     add("text_", [np.log1p(glyph.sum()), glyph.sum() / max(len(s_stats), 1), aligned, np.log1p(n_text_rows),
                   np.log1p(alternations), thin.sum() / max(ink.sum(), 1)],
         ["log_glyphs", "glyph_share", "aligned", "log_rows", "log_row_alternations", "thin_of_ink"])
+
+    add("mark_", _marks(diff, ink), MARK_NAMES)
 
     # symmetry
     t = thumb.astype(np.float32)

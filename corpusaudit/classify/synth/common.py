@@ -113,6 +113,25 @@ def figure_size(rng: np.random.Generator) -> tuple[int, int]:
     return width, max(120, int(width * aspect))
 
 
+def scatter_points(rng, m):
+    """One group of points: a linear or curved relation, a shapeless cloud or a few clusters."""
+    kind = rng.choice(["linear", "linear", "curve", "cloud", "clusters"])
+    if kind == "clusters":
+        centres = rng.uniform(-5, 5, (int(rng.integers(2, 5)), 2))
+        pick = rng.integers(0, len(centres), m)
+        spread = rng.uniform(0.3, 1.5)
+        return centres[pick, 0] + rng.normal(0, spread, m), centres[pick, 1] + rng.normal(0, spread, m)
+    x = rng.normal(rng.uniform(-5, 5), rng.uniform(0.5, 3), m) if rng.random() < 0.7 else rng.uniform(-5, 5, m)
+    if kind == "cloud":
+        return x, rng.normal(0, rng.uniform(1, 5), m)
+    if kind == "linear":
+        signal = x * rng.uniform(-2, 2)
+    else:
+        signal = rng.uniform(-0.6, 0.6) * x ** 2 + rng.uniform(-2, 2) * x
+    # noise in proportion to the signal: a scatter shows a relation, not a curve traced by points
+    return x, signal + rng.normal(0, rng.uniform(0.15, 0.8) * signal.std() + 0.2, m)
+
+
 def augment(rgb: np.ndarray, rng: np.random.Generator, strength: float = 1.0) -> np.ndarray:
     """Degradations seen in real corpora: rotation, scan noise, blur, grey, downscaling, JPEG, margins."""
     img = rgb

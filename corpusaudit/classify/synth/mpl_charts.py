@@ -6,6 +6,7 @@ import matplotlib
 
 matplotlib.use("Agg")
 
+import logging
 import warnings
 
 import matplotlib.style
@@ -17,6 +18,10 @@ from matplotlib.patches import Polygon, Wedge
 from scipy.spatial import Voronoi
 
 from . import common as c
+
+# cmss10 lacks a few glyphs (the minus and times signs of log-axis labels); a stand-in box is fine
+# in training data, so the warning matplotlib logs for each one is noise.
+logging.getLogger("matplotlib.mathtext").setLevel(logging.ERROR)
 
 STYLES = ("default", "default", "default", "ggplot", "seaborn-v0_8-whitegrid", "seaborn-v0_8-darkgrid",
           "bmh", "classic", "fivethirtyeight", "grayscale", "seaborn-v0_8-ticks", "Solarize_Light2",
@@ -53,8 +58,8 @@ def _decorate(ax, rng, title=True, legend=False):
         ax.set_xlabel(c.sentence(rng, 1, 3))
     if rng.random() < 0.6:
         ax.set_ylabel(c.sentence(rng, 1, 3))
-    if rng.random() < 0.35:
-        ax.grid(True, axis=str(rng.choice(["both", "x", "y"])), alpha=float(rng.uniform(0.3, 0.9)),
+    if rng.random() < 0.45:  # full grids are common (spreadsheet and web styles) and cross every mark
+        ax.grid(True, axis=str(rng.choice(["both", "both", "x", "y"])), alpha=float(rng.uniform(0.3, 0.9)),
                 linestyle=str(rng.choice(["-", "--", ":"])))
     if rng.random() < 0.25:
         for side in ("top", "right"):
@@ -142,17 +147,19 @@ def histogram(ax, rng):
 
 def line(ax, rng):
     series = int(rng.choice([1, 1, 2, 3, 4, 5, 7]))
-    n = int(rng.choice([6, 10, 20, 40, 100, 300]))
+    n = int(rng.choice([6, 10, 20, 40, 60, 100, 300]))
     x = np.arange(n) if rng.random() < 0.7 else np.sort(rng.uniform(0, 100, n))
     colours = c.palette(rng, series)
-    marker = str(rng.choice(["", "", "", "o", "s", "^", "."])) if n <= 40 else ""
+    marker = str(rng.choice(["", "", "o", "s", "^", ".", "D"])) if n <= 60 else ""
+    hollow = bool(marker) and rng.random() < 0.35
     scale = 10.0 ** int(rng.integers(-1, 4))
     for s in range(series):
         y = _numbers(rng, n, str(rng.choice(["walk", "trend"])), scale) if rng.random() < 0.7 else \
             np.sin(x / rng.uniform(3, 20) + rng.uniform(0, 6)) * rng.uniform(1, 5) + rng.uniform(0, 10)
-        ax.plot(x, y, color=colours[s], marker=marker, markersize=float(rng.uniform(2, 7)),
-                linewidth=float(rng.uniform(0.8, 3)), linestyle=str(rng.choice(["-", "-", "-", "--", ":"])),
-                label=c.label(rng))
+        face = {"markerfacecolor": str(rng.choice(["none", "white"]))} if hollow else {}
+        ax.plot(x, y, color=colours[s], marker=marker, markersize=float(rng.uniform(2, 8)),
+                linewidth=float(rng.uniform(0.6, 3)), linestyle=str(rng.choice(["-", "-", "-", "--", ":"])),
+                label=c.label(rng), **face)
         if rng.random() < 0.1:
             ax.fill_between(x, y * 0.9, y * 1.1, color=colours[s], alpha=0.15)
     if rng.random() < 0.1:
@@ -181,33 +188,57 @@ def area(ax, rng):
 
 
 def scatter(ax, rng):
-    n = int(rng.choice([15, 30, 40, 100, 300, 1000, 3000]))
+    n = int(rng.choice([6, 10, 15, 25, 40, 60, 100, 300, 1000, 3000]))
     groups = int(rng.choice([1, 1, 2, 3, 4]))
-    bubble = rng.random() < 0.25
+    bubble = rng.random() < 0.2
     by_value = rng.random() < 0.2
+    log_x, log_y = rng.random() < 0.15, rng.random() < 0.15
+    hollow = rng.random() < 0.45
+    size = float(rng.choice([2, 4, 6, 10, 20, 40, 80]))
+    everything = []
     for g in range(groups):
-        m = max(5, n // groups)
-        x = rng.normal(rng.uniform(-5, 5), rng.uniform(0.5, 3), m)
-        y = x * rng.uniform(-2, 2) + rng.normal(0, rng.uniform(0.5, 4), m)
-        sizes = rng.uniform(20, 900, m) if bubble else float(rng.choice([4, 10, 20, 40]))
+        m = max(4, n // groups)
+        x, y = c.scatter_points(rng, m)
+        if log_x:  # values spread over decades, drawn on a log axis
+            x = 10 ** (x / rng.uniform(1.5, 4))
+        if log_y:
+            y = 10 ** (y / (np.ptp(y) + 1e-9) * rng.uniform(2, 5))
+        everything.append((x, y))
+        sizes = rng.uniform(20, 900, m) if bubble else size
         kw = {"c": x + y, "cmap": c.continuous_map(rng)} if by_value else {"color": c.palette(rng, 1)[0]}
-        marker = str(rng.choice(["o", "o", "o", "s", "^", "x", "+", "D"]))
-        if marker not in "x+" and rng.random() < 0.4 and not by_value:  # hollow markers
-            kw = {"facecolors": "none", "edgecolors": kw["color"]}
-        elif marker not in "x+":
+        marker = str(rng.choice(["o", "o", "o", "s", "^", "x", "+", "D", "v", "."]))
+        if marker not in "x+." and hollow and not by_value:
+            kw = {"facecolors": "none", "edgecolors": kw["color"], "linewidths": float(rng.uniform(0.5, 1.6))}
+        elif marker not in "x+.":
             kw["edgecolors"] = str(rng.choice(["none", "face", "k", "white"]))
         pts = ax.scatter(x, y, s=sizes, alpha=float(rng.uniform(0.35, 1.0)), marker=marker,
                          label=c.label(rng), **kw)
+    if log_x:
+        ax.set_xscale("log")
+    if log_y:
+        ax.set_yscale("log")
     if by_value and rng.random() < 0.6:
         ax.figure.colorbar(pts, ax=ax)
-    if rng.random() < 0.15:
-        xs = np.linspace(*ax.get_xlim(), 10)
-        ax.plot(xs, xs * rng.uniform(-1, 1), color="k", linewidth=1)
+    if rng.random() < 0.3:  # a fitted trend, sometimes with a band; the points stay the message
+        x, y = everything[0]
+        fx, fy = (np.log10(x) if log_x else x), (np.log10(y) if log_y else y)
+        coef = np.polyfit(fx, fy, int(rng.choice([1, 1, 2])))
+        grid = np.linspace(fx.min(), fx.max(), 50)
+        fit = np.polyval(coef, grid)
+        gx, gy = (10 ** grid if log_x else grid), (10 ** fit if log_y else fit)
+        ax.plot(gx, gy, color=str(rng.choice(["k", "0.4", "tab:red", "tab:blue"])),
+                linewidth=float(rng.uniform(0.8, 2)), linestyle=str(rng.choice(["-", "-", "--"])))
+        if rng.random() < 0.4 and not log_y:
+            band = np.std(fy - np.polyval(coef, fx)) * 1.5
+            ax.fill_between(gx, gy - band, gy + band, color="0.5", alpha=0.2, linewidth=0)
+    elif rng.random() < 0.1:  # a reference diagonal
+        lims = ax.get_xlim()
+        ax.plot(lims, lims, color="0.5", linewidth=1, linestyle="--")
     _decorate(ax, rng, legend=groups > 1)
 
 
 def box(ax, rng):
-    groups = int(rng.integers(2, 11))
+    groups = int(rng.choice([2, 2, 3, 3, 4, 5, 6, 8, 10]))  # two or three groups are common: few marks
     data = [rng.normal(rng.uniform(0, 10), rng.uniform(0.5, 3), int(rng.integers(20, 200))) for _ in range(groups)]
     if rng.random() < 0.5:
         data = [np.concatenate([d, rng.normal(d.mean(), 5 * d.std(), 4)]) for d in data]
@@ -215,7 +246,7 @@ def box(ax, rng):
     filled = rng.random() < 0.5
     parts = ax.boxplot(data, orientation="vertical" if vertical else "horizontal", patch_artist=filled,
                        showfliers=bool(rng.random() < 0.7), notch=bool(rng.random() < 0.15),
-                       widths=float(rng.uniform(0.3, 0.8)), tick_labels=_categories(rng, groups))
+                       widths=float(rng.uniform(0.1, 0.8)), tick_labels=_categories(rng, groups))
     if filled:
         colours = c.palette(rng, groups)
         single = rng.random() < 0.4

@@ -1,5 +1,6 @@
-"""Figures that are not charts: photos, tables, flow diagrams, text, equations, logos, UI screens,
-microscopy-like textures. Drawn with Pillow, OpenCV and matplotlib's mathtext."""
+"""Figures that are not charts: photos (clean, noisy, star fields), tables, flow diagrams, text and
+document pages, equations, logos, UI screens, microscopy-like and material textures. Drawn with
+Pillow, OpenCV and matplotlib's mathtext."""
 
 from __future__ import annotations
 
@@ -257,7 +258,131 @@ def microscopy(rng):
     return (np.clip(rgb, 0, 1) * 255).astype(np.uint8)
 
 
-DRAWERS = (photo, photo, photo, procedural_photo, procedural_photo, table, text_block, equation, flow_diagram, logo, ui_screen, microscopy)
+def star_field(rng):
+    """Astronomy-like frames: point sources whose brightness spans decades on a dark, noisy sky,
+    sometimes with fuzzy galaxies, a nebular glow and diffraction spikes on the brightest stars."""
+    w, h = c.figure_size(rng)
+    img = np.full((h, w, 3), rng.uniform(0, 0.06), np.float32)
+    if rng.random() < 0.5:
+        glow = cv2.resize(rng.uniform(0, 1, (5, 5, 3)).astype(np.float32), (w, h), interpolation=cv2.INTER_CUBIC)
+        img += np.clip(glow, 0, 1) ** 2 * rng.uniform(0.05, 0.4)
+    n = int(rng.integers(20, 1500))
+    flux = rng.pareto(1.3, n) + 0.05  # many faint sources, a few bright ones
+    xs, ys = rng.integers(0, w, n), rng.integers(0, h, n)
+    warmth = rng.uniform(0, 1, n)  # blue-white to orange, as stellar colours run
+    colour = np.c_[0.75 + 0.25 * warmth, 0.8 + 0.1 * warmth, 1.0 - 0.45 * warmth]
+    points = np.zeros((h, w, 3), np.float32)
+    np.add.at(points, (ys, xs), flux[:, None] * colour)
+    img += cv2.GaussianBlur(points, (0, 0), rng.uniform(0.6, 2.2)) * rng.uniform(2, 12)
+    for _ in range(int(rng.integers(0, 12))):  # galaxies: tilted, fuzzy ellipses
+        blob = np.zeros((h, w), np.float32)
+        size = rng.uniform(2, 22)
+        cv2.ellipse(blob, (int(rng.integers(0, w)), int(rng.integers(0, h))),
+                    (int(size), max(1, int(size * rng.uniform(0.2, 1)))), float(rng.uniform(0, 180)), 0, 360, 1.0, -1)
+        tint = np.array([rng.uniform(0.6, 1), rng.uniform(0.5, 0.9), rng.uniform(0.4, 1)], np.float32)
+        img += cv2.GaussianBlur(blob, (0, 0), size / 2 + 1)[..., None] * tint * rng.uniform(0.3, 1.2)
+    if rng.random() < 0.4:
+        for k in np.argsort(flux)[-int(rng.integers(1, 6)):]:
+            length = int(min(6 + flux[k] * rng.uniform(2, 6), 0.15 * max(w, h)))
+            x, y = int(xs[k]), int(ys[k])
+            cv2.line(img, (x - length, y), (x + length, y), (0.5, 0.5, 0.55), 1)
+            cv2.line(img, (x, y - length), (x, y + length), (0.5, 0.5, 0.55), 1)
+    img += rng.normal(0, rng.uniform(0.005, 0.04), img.shape).astype(np.float32)
+    stretch = rng.uniform(2, 20)  # asinh display stretch, as sky images are shown
+    img = np.arcsinh(np.clip(img, 0, None) * stretch) / np.arcsinh(stretch)
+    if rng.random() < 0.3:
+        img = np.repeat(img.mean(2, keepdims=True), 3, axis=2)
+    return (np.clip(img, 0, 1) * 255).astype(np.uint8)
+
+
+def texture(rng):
+    """Material-like surfaces: marble or wood grain, woven cloth, pebbles, sand."""
+    w, h = c.figure_size(rng)
+    yy, xx = np.mgrid[0:h, 0:w].astype(np.float32)
+    noise = cv2.GaussianBlur(rng.normal(0, 1, (h, w)).astype(np.float32), (0, 0), rng.uniform(3, 20))
+    noise /= noise.std() + 1e-6
+    kind = rng.choice(["marble", "wood", "weave", "pebbles", "sand"])
+    if kind == "marble":
+        v = np.sin((xx * np.cos(a := rng.uniform(0, np.pi)) + yy * np.sin(a)) * rng.uniform(0.02, 0.1) +
+                   noise * rng.uniform(1, 4)) * 0.5 + 0.5
+    elif kind == "wood":
+        cx, cy = rng.uniform(-w, 2 * w), rng.uniform(-h, 2 * h)
+        v = np.sin(np.hypot(xx - cx, (yy - cy) * rng.uniform(0.1, 1)) * rng.uniform(0.1, 0.5) + noise * 2) * 0.5 + 0.5
+    elif kind == "weave":
+        f = rng.uniform(0.2, 0.8)
+        v = (np.sin(xx * f) * np.sin(yy * f) * 0.5 + 0.5) * 0.7 + noise * 0.05 + 0.15
+    elif kind == "pebbles":
+        seeds = np.full((h, w), 255, np.uint8)
+        n = int(rng.integers(20, 400))
+        seeds[rng.integers(0, h, n), rng.integers(0, w, n)] = 0
+        dist = cv2.distanceTransform(seeds, cv2.DIST_L2, 5)
+        v = 1 - np.clip(dist / (dist.max() + 1e-6), 0, 1) ** rng.uniform(0.5, 1.5) + noise * 0.08
+    else:
+        v = 0.6 + rng.normal(0, 0.15, (h, w)).astype(np.float32) + noise * 0.1
+    v = cv2.GaussianBlur(np.clip(v, 0, 1).astype(np.float32), (0, 0), rng.uniform(0.3, 1.2))
+    dark, light = np.sort(rng.uniform(0, 1, (2, 3)), axis=0)
+    rgb = dark + v[..., None] * (light - dark)
+    shade = np.linspace(rng.uniform(0.75, 1.0), rng.uniform(0.75, 1.0), w, dtype=np.float32)[None, :, None]
+    return (np.clip(rgb * shade, 0, 1) * 255).astype(np.uint8)
+
+
+def document(rng):
+    """Part of a typeset page as scanned or rasterised: heading, one or two text columns, maybe a
+    framed picture and a page number."""
+    img, d, fg, bg = _page(rng, (int(rng.integers(300, 900)), int(rng.integers(300, 1100))))
+    w, h = img.size
+    body = c.random_font(rng, 7, 14)
+    head = c.font(1, int(body.size * rng.uniform(1.3, 2.0)))
+    margin = int(w * rng.uniform(0.04, 0.1))
+    y = margin
+    d.text((margin, y), c.sentence(rng, 2, 6), fill=fg, font=head)
+    y += int(head.size * 1.8)
+    columns = int(rng.choice([1, 1, 2]))
+    gutter = int(w * 0.04)
+    col_w = (w - 2 * margin - gutter * (columns - 1)) // columns
+    picture = rng.random() < 0.35
+    for k in range(columns):
+        x, yy = margin + k * (col_w + gutter), y
+        if picture and k == columns - 1:
+            ph = int(h * rng.uniform(0.15, 0.3))
+            crop = cv2.resize(photo(rng), (col_w, ph), interpolation=cv2.INTER_AREA)
+            img.paste(Image.fromarray(crop), (x, yy))
+            yy += ph + body.size
+            d.text((x, yy), c.sentence(rng, 3, 7), fill=fg, font=body)
+            yy += int(body.size * 2)
+        while yy < h - margin - body.size:
+            line = ""
+            while d.textlength(line, font=body) < col_w * rng.uniform(0.85, 1.0):
+                line += c.word(rng) + " "
+            d.text((x, yy), line.strip(), fill=fg, font=body)
+            yy += int(body.size * rng.uniform(1.25, 1.5))
+    d.text((w // 2, h - margin // 2), str(int(rng.integers(1, 300))), fill=fg, font=body, anchor="mm")
+    return np.asarray(img).copy()
+
+
+def noisy_photo(rng):
+    """A photo from a poor camera or a dim scene: sensor noise, vignetting, low light, motion blur."""
+    img = (photo(rng) if rng.random() < 0.6 else procedural_photo(rng)).astype(np.float32)
+    h, w = img.shape[:2]
+    if rng.random() < 0.4:  # low light
+        img *= rng.uniform(0.2, 0.6)
+    if rng.random() < 0.4:
+        k = int(rng.integers(3, 12))
+        kernel = np.zeros((k, k), np.float32)
+        kernel[k // 2] = 1.0 / k
+        img = cv2.filter2D(img, -1, kernel)
+    yy, xx = np.mgrid[0:h, 0:w].astype(np.float32)
+    r = np.hypot((xx - w / 2) / (w / 2), (yy - h / 2) / (h / 2))
+    img *= (1 - rng.uniform(0, 0.5) * np.clip(r, 0, 1.5) ** 2)[..., None]
+    img += rng.normal(0, rng.uniform(4, 25), img.shape).astype(np.float32)
+    if rng.random() < 0.3:  # salt and pepper
+        mask = rng.random((h, w)) < rng.uniform(0.002, 0.02)
+        img[mask] = rng.choice([0.0, 255.0], (int(mask.sum()), 1))
+    return np.clip(img, 0, 255).astype(np.uint8)
+
+
+DRAWERS = (photo, photo, photo, procedural_photo, procedural_photo, noisy_photo, star_field, texture, document,
+           table, text_block, equation, flow_diagram, logo, ui_screen, microscopy)
 
 
 def render(rng: np.random.Generator) -> np.ndarray:

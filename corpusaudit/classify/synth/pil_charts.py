@@ -53,7 +53,7 @@ class Canvas:
 
     def axes(self, x_labels=None, y_labels=None, x_numeric=True, y_numeric=True, grid=None, frame=None):
         rng, d = self.rng, self.draw
-        grid = rng.choice(["none", "y", "both", "x"]) if grid is None else grid
+        grid = rng.choice(["none", "y", "both", "both", "x"]) if grid is None else grid
         frame = rng.choice(["lb", "lb", "box", "l", "none", "none"]) if frame is None else frame
         grid_col = c.to_uint8(np.clip(np.asarray(self.bg) * rng.uniform(0.55, 0.93) + (0.1 if self.dark else 0), 0, 1))
         if rng.random() < 0.15:  # plot-area fill (ggplot-like)
@@ -203,6 +203,23 @@ def _series(rng, n):
     return y
 
 
+def _marker(draw, shape, x, y, r, col, width, fill_inside=None):
+    box = [x - r, y - r, x + r, y + r]
+    if shape == "circle":
+        draw.ellipse(box, fill=col)
+    elif shape == "square":
+        draw.rectangle(box, fill=col)
+    elif shape == "ring":
+        draw.ellipse(box, outline=col, width=width, fill=fill_inside)
+    elif shape == "hollow_square":
+        draw.rectangle(box, outline=col, width=width, fill=fill_inside)
+    elif shape == "triangle":
+        draw.polygon([(x, y - r), (x + r, y + r * 0.8), (x - r, y + r * 0.8)], fill=col)
+    else:
+        draw.line([(box[0], y), (box[2], y)], fill=col, width=width)
+        draw.line([(x, box[1]), (x, box[3])], fill=col, width=width)
+
+
 def line(rng):
     cv = Canvas(rng)
     series, n = int(rng.choice([1, 1, 2, 3, 5])), int(rng.choice([8, 15, 30, 80, 200]))
@@ -212,15 +229,17 @@ def line(rng):
     cv.axes()
     colours = c.palette(rng, series)
     width = int(cv.supersample * rng.choice([1, 2, 2, 3]))
-    markers = n <= 30 and rng.random() < 0.4
+    markers = n <= 30 and rng.random() < 0.5
+    shape = rng.choice(["circle", "circle", "ring", "square", "hollow_square", "triangle"])
+    r = cv.supersample * rng.uniform(2, 4.5)
+    inside = c.to_uint8(cv.bg) if rng.random() < 0.6 else None
     for s in range(series):
         xs, yv = cv.px(np.arange(n), ys[s])
         pts = list(zip(xs.tolist(), yv.tolist()))
         cv.draw.line(pts, fill=c.to_uint8(colours[s]), width=width, joint="curve")
         if markers:
-            r = 3 * cv.supersample
             for x, y in pts:
-                cv.draw.ellipse([x - r, y - r, x + r, y + r], fill=c.to_uint8(colours[s]))
+                _marker(cv.draw, shape, x, y, r, c.to_uint8(colours[s]), max(width, cv.supersample), inside)
     if series > 1:
         cv.legend(_categories(rng, series), colours)
     return cv.finish()
@@ -260,42 +279,41 @@ def area(rng):
 def scatter(rng):
     cv = Canvas(rng)
     groups = int(rng.choice([1, 1, 2, 3]))
-    n = int(rng.choice([15, 30, 60, 200, 800, 2500]))
-    bubble = rng.random() < 0.25
+    n = int(rng.choice([6, 10, 15, 30, 60, 200, 800, 2500]))
+    bubble = rng.random() < 0.2
+    log_y = rng.random() < 0.15  # values over decades: points crowd at one end of a linear axis
     pts = []
     for g in range(groups):
-        m = n // groups
-        x = rng.normal(rng.uniform(-3, 3), rng.uniform(0.5, 2), m)
-        y = x * rng.uniform(-1.5, 1.5) + rng.normal(0, rng.uniform(0.3, 2), m)
+        m = max(4, n // groups)
+        x, y = c.scatter_points(rng, m)
+        if log_y and rng.random() < 0.5:
+            y = np.exp(y - y.max())
         pts.append((x, y))
     allx = np.concatenate([p[0] for p in pts])
     ally = np.concatenate([p[1] for p in pts])
-    cv.set_range(allx.min() - 0.5, allx.max() + 0.5, ally.min() - 0.5, ally.max() + 0.5)
+    padx, pady = np.ptp(allx) * 0.06 + 0.1, np.ptp(ally) * 0.06 + 0.1
+    cv.set_range(allx.min() - padx, allx.max() + padx, ally.min() - pady, ally.max() + pady)
     cv.axes()
     colours = c.palette(rng, groups)
     layer = Image.new("RGBA", cv.image.size, (0, 0, 0, 0))
     ld = ImageDraw.Draw(layer)
     alpha = int(255 * rng.uniform(0.4, 1.0))
-    shape = rng.choice(["circle", "circle", "square", "ring", "ring", "hollow_square", "cross"])
-    base_r = cv.supersample * (rng.uniform(1.5, 5) if not bubble else 1)
+    shape = rng.choice(["circle", "circle", "square", "ring", "ring", "ring", "hollow_square", "cross", "triangle"])
+    base_r = cv.supersample * (rng.uniform(1.2, 5) if not bubble else 1)
+    inside = c.to_uint8(cv.bg) + (255,) if rng.random() < 0.3 else None
     for g, (x, y) in enumerate(pts):
         xs, ys = cv.px(x, y)
         radii = rng.uniform(4, 22, xs.size) * cv.supersample if bubble else np.full(xs.size, base_r)
         col = c.to_uint8(colours[g]) + (alpha,)
         for px_, py_, r in zip(xs, ys, radii):
-            box = [px_ - r, py_ - r, px_ + r, py_ + r]
-            if shape == "circle":
-                ld.ellipse(box, fill=col)
-            elif shape == "square":
-                ld.rectangle(box, fill=col)
-            elif shape == "ring":
-                ld.ellipse(box, outline=col, width=cv.supersample)
-            elif shape == "hollow_square":
-                ld.rectangle(box, outline=col, width=cv.supersample)
-            else:
-                ld.line([(box[0], py_), (box[2], py_)], fill=col, width=cv.supersample)
-                ld.line([(px_, box[1]), (px_, box[3])], fill=col, width=cv.supersample)
+            _marker(ld, shape, px_, py_, r, col, cv.supersample, inside)
     cv.image.paste(layer, (0, 0), layer)
+    if rng.random() < 0.3:  # a fitted trend line over the points
+        coef = np.polyfit(allx, ally, int(rng.choice([1, 1, 2])))
+        gx = np.linspace(allx.min(), allx.max(), 40)
+        xs, ys = cv.px(gx, np.polyval(coef, gx))
+        colour = c.to_uint8(cv.fg) if rng.random() < 0.5 else c.to_uint8(c.palette(rng, 1)[0])
+        cv.draw.line(list(zip(xs.tolist(), ys.tolist())), fill=colour, width=cv.supersample * int(rng.integers(1, 3)))
     if groups > 1:
         cv.legend(_categories(rng, groups), colours)
     return cv.finish()
@@ -303,7 +321,7 @@ def scatter(rng):
 
 def box(rng):
     cv = Canvas(rng)
-    groups = int(rng.integers(2, 10))
+    groups = int(rng.choice([2, 2, 3, 3, 4, 5, 6, 8, 10]))  # two or three groups are common: few marks
     data = [rng.normal(rng.uniform(0, 10), rng.uniform(0.5, 3), 80) for _ in range(groups)]
     outliers = rng.random() < 0.6
     lo = min(d.min() for d in data) - 1
@@ -319,7 +337,8 @@ def box(rng):
     colours = c.palette(rng, groups)
     filled = rng.random() < 0.6
     borderless = rng.random() < 0.4  # flat boxes with a light median line, as some web libraries draw them
-    width = rng.uniform(0.2, 0.4)
+    width = rng.uniform(0.06, 0.4)  # half-width per category: from thin strips to wide boxes
+    caps = rng.random() < 0.6  # whisker caps: some libraries draw them, some (ggplot2's default) do not
     fg = c.to_uint8(cv.fg)
     lw = cv.line_w
     for i, d in enumerate(data):
@@ -338,8 +357,9 @@ def box(rng):
         seg(i - width, med, i + width, med, c.to_uint8(cv.bg) if filled and borderless else fg)
         seg(i, q3, i, wh)
         seg(i, q1, i, wl)
-        seg(i - width / 2, wh, i + width / 2, wh)
-        seg(i - width / 2, wl, i + width / 2, wl)
+        if caps:
+            seg(i - width / 2, wh, i + width / 2, wh)
+            seg(i - width / 2, wl, i + width / 2, wl)
         if outliers:
             extra = np.concatenate([rng.uniform(wh + 0.2, hi, int(rng.integers(0, 4))),
                                     rng.uniform(lo, wl - 0.2, int(rng.integers(0, 4)))])
