@@ -22,6 +22,11 @@ def cyclic_monotone(values: list[float], tolerance: float) -> bool:
     return False
 
 
+def clean_label(text: str) -> bool:
+    """Looks like a word or number, not text recognition debris such as '=npim' or 'fo}'."""
+    return bool(_CLEAN_LABEL.fullmatch(text.strip()))
+
+
 def labels_at(positions: list[float], ticks, spacing_share: float = 0.4) -> list[str] | None:
     """The tick label nearest each position, or None when one has no label close enough."""
     ticks = list(ticks)
@@ -52,6 +57,6 @@ def labels_read_at(positions: list[float], ticks, spacing_share: float = 0.4) ->
     labels = []
     for position in positions:
         near = [t for t in ticks if abs(t.pixel - position) <= spacing_share * spacing]
-        if len(near) == 1 and _CLEAN_LABEL.fullmatch(near[0].text.strip()):
+        if len(near) == 1 and clean_label(near[0].text):
             labels.append(near[0].text.strip())
     return labels if len(set(labels)) == len(labels) else []

@@ -2,9 +2,9 @@
 
 from __future__ import annotations
 
-from corpusaudit.checks._order import labels_at, labels_read_at, monotone
+from corpusaudit.checks._order import clean_label, labels_at, labels_read_at, monotone
 from corpusaudit.checks.registry import CheckContext, rule
-from corpusaudit.measure.axes import natural_order
+from corpusaudit.measure.axes import natural_order, ordinal_key
 from corpusaudit.measure.shapes import is_vector
 from corpusaudit.model import Draft, MeasurementUnavailable, Option, Outcome
 
@@ -60,23 +60,36 @@ def bar_baseline(ctx: CheckContext) -> Outcome:
     id="tick-label-rotation",
     applies_to=("bar", "line", "box", "histogram"),
     severity="warning",
-    requires=("tick_label_angle",),
+    requires=("tick_label_angle", "y_tick_label_angle", "bars"),
     options=(Option("min_angle", 30.0, "rotation (degrees) from which labels count as rotated", minimum=0.0, maximum=90.0),),
     rationale="""Rotated labels are read slowly and with head tilted; they usually mean the
         categories do not fit along the axis.""",
     fix="""Swap to horizontal bars so labels run horizontally, shorten or wrap the labels.""",
     problem="""Twelve survey-site names under a bar chart, set at 45 degrees so that readers tilt their heads.""",
     better="""Horizontal bars with the site names written horizontally beside them.""",
-    limitations="""Reads label angles from vector text exactly; on rasters the angle is estimated from text-line
-        orientation and small text may be missed.""",
+    limitations="""Reads label angles from vector text exactly. On rasters the angle is measured from the labels'
+        glyphs (the baseline they stand on, searched jointly for the row), to about a degree, and compared after
+        rounding to whole degrees; single-glyph labels show no direction and leave the rule unmeasured unless they
+        stand upright. On horizontal bar charts the category labels beside the y axis are judged.""",
 )
 def tick_label_rotation(ctx: CheckContext) -> Outcome:
-    measured = ctx.measure("tick_label_angle")
+    measured = ctx.measure(_category_label_angle(ctx))
     limit = ctx.options["min_angle"]
-    if measured.angle < limit:
+    if round(measured.angle) < limit:  # measured to the degree
         return Outcome()
     return Outcome(findings=(Draft(message=f"tick labels rotated {measured.angle:.0f}°; at {limit:g}° or more they are hard to read",
                                    value=f"{measured.angle:.0f}", threshold=f"{limit:g}", region=measured.region),))
+
+
+def _category_label_angle(ctx: CheckContext) -> str:
+    """The angle measurement of the category labels: beside the y axis for horizontal bars."""
+    if ctx.figure.chart_type == "bar":
+        try:
+            if ctx.measure("bars").orientation == "horizontal":
+                return "y_tick_label_angle"
+        except MeasurementUnavailable:
+            pass
+    return "tick_label_angle"
 
 
 @rule(
@@ -92,7 +105,10 @@ def tick_label_rotation(ctx: CheckContext) -> Outcome:
     better="""The same bars sorted from largest to smallest.""",
     limitations="""Cannot know when categories have a natural order (months, age bands, ranked scales); treat the
         finding as a question to the author. When a vector chart's labels are found for only some bars, the
-        finding rests on at least three of them; on rasters every bar's label must be read.""",
+        finding rests on at least three of them, none reaching the figure's edge. On rasters each label is
+        read by text recognition turned to its measured angle and paired with its bar in order; labels cut off
+        by the image edge are left out the same way, and labels partly read as numbers or months leave the
+        rule unmeasured.""",
 )
 def bar_order(ctx: CheckContext) -> Outcome:
     chart = ctx.measure("bars")
@@ -104,17 +120,62 @@ def bar_order(ctx: CheckContext) -> Outcome:
     axes = ctx.measure("axes")
     axis = axes.x if chart.orientation == "vertical" else axes.y
     positions = [stack.position for stack in chart.stacks]
-    labels = labels_at(positions, axis.ticks)
-    if labels is None:
-        # Some labels not found (stated text only: OCR misreads would pass for labels): those
-        # found, if in no natural order, show the whole set is in none.
-        labels = labels_read_at(positions, axis.ticks) if is_vector(ctx.figure) else []
-        if len(labels) < 3 or natural_order(labels):
+    if is_vector(ctx.figure):
+        labels = labels_at(positions, axis.ticks)
+        if labels is None:
+            # Some labels not found or cut off by the figure's edge (their text may be incomplete):
+            # those found whole, if in no natural order, show the whole set is in none.
+            whole = [tick for tick in axis.ticks if not _cut_off(tick.bbox, ctx.figure)]
+            labels = labels_read_at(positions, whole)
+            if len(labels) < 3 or natural_order(labels):
+                return Outcome(unmeasured=True, reason="category labels not read")
+    else:
+        labels, complete = _raster_category_labels(ctx, chart, positions)
+        if labels is None:
+            labels, complete = labels_at(positions, axis.ticks), True
+        if labels is None or not all(clean_label(label) for label in labels) or len(labels) < 3:
             return Outcome(unmeasured=True, reason="category labels not read")
-    elif natural_order(labels):
+        if not natural_order(labels) and any(ordinal_key(label) is not None for label in labels):
+            # Some labels are numbers or months and others not: a misread of an ordered scale.
+            return Outcome(unmeasured=True, reason="category labels read only in part")
+        if not complete and natural_order(labels):
+            return Outcome(unmeasured=True, reason="category labels cut off by the image edge")
+    if natural_order(labels):
         return Outcome()
     return Outcome(findings=(Draft(message=f"{len(chart.stacks)} bars neither sorted by value nor in a natural order of their labels",
                                    value=", ".join(labels[:8]), threshold="sorted or natural order", region=axes.plot),))
+
+
+def _cut_off(box, figure) -> bool:
+    """A label reaching the figure's edge: its text may be clipped there."""
+    width, height = (figure.pixels.shape[1], figure.pixels.shape[0]) if figure.pixels is not None else \
+        (figure.width_px, figure.height_px)
+    return box[0] <= 0.5 or box[1] <= 0.5 or box[2] >= width - 0.5 or box[3] >= height - 0.5
+
+
+def _raster_category_labels(ctx: CheckContext, chart, positions: list[float]) -> tuple[list[str] | None, bool]:
+    """The category labels of a raster bar chart, each read turned to its angle, paired with the bars.
+
+    Pairs in order when there is one label per bar and each bar lies within its label's reach
+    along the axis (a rotated label ends at its tick, an upright one is centred on it).
+    Labels cut off by the image edge are left out (their text is incomplete): the labels
+    returned are then a subsequence, flagged by complete=False, which proves no natural order
+    of the whole set when it has none itself. (None, False) when labels are merged or missing.
+    """
+    side = "x" if chart.orientation == "vertical" else "y"
+    blobs = ctx.measure("label_blobs")[side]
+    if len(blobs) != len(positions):
+        return None, False
+    spacing = min(b - a for a, b in zip(positions, positions[1:]))
+    along = 0 if side == "x" else 1
+    for blob, position in zip(blobs, positions):
+        if not blob.bbox[along] - 0.5 * spacing <= position <= blob.bbox[along + 2] + 0.5 * spacing:
+            return None, False
+    texts = ctx.measure(f"{side}_label_texts")
+    labels = [tick.text.strip() for tick, blob in zip(texts, blobs) if not blob.clipped]
+    if len(set(labels)) != len(labels):
+        return None, False
+    return labels, len(labels) == len(blobs)
 
 
 @rule(

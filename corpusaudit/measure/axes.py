@@ -20,6 +20,8 @@ from corpusaudit.measure.shapes import (
 from corpusaudit.measure.text import merge_words_into_lines, ocr_words, parse_number
 from corpusaudit.model import BBox, Figure, MeasurementUnavailable, TextSpan
 
+# Ink for tick marks: clearly darker than a tinted panel (ggplot's grey is 45 levels from white).
+TICK_INK = 60.0
 LINEARITY_TOLERANCE = 0.02  # largest fit residual, as a share of the labelled value range
 _OCR_DIGIT_FIXES = str.maketrans({"O": "0", "o": "0", "D": "0", "l": "1", "I": "1", "|": "1", "S": "5", "—": "-"})
 
@@ -85,9 +87,48 @@ def _vector_plot_area(figure: Figure) -> BBox:
     raise MeasurementUnavailable("no plot area (no axes frame or axis lines found)")
 
 
+def _filled_panel(rgb: np.ndarray, background: np.ndarray) -> BBox | None:
+    """A flat light-neutral panel that differs from the page (ggplot-like styles), or None.
+
+    The panel is the modal light neutral colour that is not page, closed over the grid lines drawn on
+    it (white in these styles, so they cut the panel into cells). It must be a rectangle
+    (its rim mostly panel colour) and hold something (grid lines, data: holes in the panel
+    colour), so a large plain bar is not taken for it.
+    """
+    import cv2
+
+    height, width = rgb.shape[:2]
+    # Light neutral tints only: a bar or an area of data colour is not a panel.
+    tint = (colour_distance(rgb, background) > 6) & (rgb.min(axis=2) >= 180) & (np.ptp(rgb, axis=2) <= 24)
+    if tint.sum() < 0.05 * width * height:
+        return None
+    pixels = rgb[tint].astype(np.int32)
+    keys = (pixels[:, 0] >> 2 << 12) | (pixels[:, 1] >> 2 << 6) | (pixels[:, 2] >> 2)
+    modal = pixels[keys == np.bincount(keys).argmax()].mean(axis=0)
+    panel = (colour_distance(rgb, modal) < 8).astype(np.uint8)
+    closed = cv2.morphologyEx(panel, cv2.MORPH_CLOSE, np.ones((7, 7), np.uint8))
+    _, stats, _ = component_stats(closed, min_area=int(0.05 * width * height))
+    if len(stats) == 0:
+        return None
+    best = stats[np.argmax(stats[:, 5])]
+    x, y, w, h = (int(v) for v in best[1:5])
+    if w * h < 0.15 * width * height:
+        return None
+    inside = panel[y:y + h, x:x + w]
+    holes = 1.0 - inside.mean()
+    box = closed[y:y + h, x:x + w]
+    rim = np.concatenate([box[1], box[-2], box[:, 1], box[:, -2]])  # a panel is a rectangle: its rim is panel
+    if holes < 0.02 or rim.mean() < 0.6 or best[5] < 0.2 * w * h:
+        return None
+    return (float(x), float(y), float(x + w), float(y + h))
+
+
 def _raster_plot_area(rgb: np.ndarray) -> BBox:
     height, width = rgb.shape[:2]
     background = background_rgb(rgb)
+    panel = _filled_panel(rgb, background)
+    if panel is not None:  # before the frame lines: a tinted panel reads as ink and fakes lines
+        return panel
     ink = ink_mask(rgb, background, threshold=45.0)
     horizontal = thin_lines(ink, "h", max(8, int(0.25 * width)))
     vertical = thin_lines(ink, "v", max(8, int(0.25 * height)))
@@ -101,22 +142,7 @@ def _raster_plot_area(rgb: np.ndarray) -> BBox:
         y0 = min(rows) if y1 - min(rows) > 0.25 * height else min(line[1] for line in vertical)
         if x1 - x0 > 0.2 * width and y1 - y0 > 0.2 * height:
             return (float(x0), float(y0), float(x1), float(y1))
-    # No dark frame: look for a flat panel that differs slightly from the page (ggplot-like styles).
-    near = colour_distance(rgb, background) > 6
-    if near.sum() < 0.1 * width * height:
-        raise MeasurementUnavailable("no plot area (no axis lines or plot panel found)")
-    pixels = rgb[near].astype(np.int32)
-    keys = (pixels[:, 0] >> 2 << 12) | (pixels[:, 1] >> 2 << 6) | (pixels[:, 2] >> 2)
-    modal = pixels[keys == np.bincount(keys).argmax()].mean(axis=0)
-    panel = colour_distance(rgb, modal) < 8
-    _, stats, _ = component_stats(panel, min_area=int(0.05 * width * height))
-    if len(stats) == 0:
-        raise MeasurementUnavailable("no plot area (no axis lines or plot panel found)")
-    best = stats[np.argmax(stats[:, 5])]
-    x, y, w, h = (float(v) for v in best[1:5])
-    if w * h < 0.15 * width * height:
-        raise MeasurementUnavailable("no plot area (plot panel too small)")
-    return (x, y, x + w, y + h)
+    raise MeasurementUnavailable("no plot area (no axis lines or plot panel found)")
 
 
 def _figure_size(figure: Figure) -> tuple[float, float]:
@@ -155,17 +181,18 @@ def _vector_tick_marks(figure: Figure, plot: BBox) -> dict[str, list[float]]:
 
 
 def _raster_tick_marks(rgb: np.ndarray, plot: BBox) -> dict[str, list[float]]:
-    ink = ink_mask(rgb, threshold=45.0)
+    ink = ink_mask(rgb, threshold=TICK_INK)
     height, width = ink.shape
     x0, y0, x1, y1 = (int(round(v)) for v in plot)
     result = {}
-    below = ink[min(height - 1, y1 + 1):min(height, y1 + 4), max(0, x0 - 2):min(width, x1 + 3)]
-    left = ink[max(0, y0 - 2):min(height, y1 + 3), max(0, x0 - 4):max(0, x0 - 1)]
+    # A band just outside the frame: ticks touch it, or (ggplot-like panels) start a few pixels off.
+    below = ink[min(height - 1, y1 + 1):min(height, y1 + 7), max(0, x0 - 2):min(width, x1 + 3)]
+    left = ink[max(0, y0 - 2):min(height, y1 + 3), max(0, x0 - 7):max(0, x0 - 1)]
     for side, strip, offset in (("x", below, max(0, x0 - 2)), ("y", left.T, max(0, y0 - 2))):
-        if strip.size == 0 or strip.shape[0] < 2:
+        if strip.size == 0 or strip.shape[0] < 3:
             result[side] = []
             continue
-        column = strip.all(axis=0)
+        column = strip.sum(axis=0) >= 3  # a tick crosses at least 3 pixels of the band
         edges = np.flatnonzero(np.diff(np.concatenate([[0], column.astype(np.int8), [0]])))
         runs = [(start, stop) for start, stop in zip(edges[::2], edges[1::2]) if stop - start <= 5]
         result[side] = [offset + (start + stop - 1) / 2.0 for start, stop in runs]
@@ -212,10 +239,7 @@ def _select_labels(spans: list[TextSpan], plot: BBox, side: str, scale: float) -
 
 
 def _number(span: TextSpan) -> float | None:
-    value = parse_number(span.text)
-    if value is None and span.font == "ocr" and any(ch.isdigit() for ch in span.text):
-        value = parse_number(span.text.translate(_OCR_DIGIT_FIXES))
-    return value
+    return _number_text(span.text) if span.font == "ocr" else parse_number(span.text)
 
 
 def _linear_fit(pixels: np.ndarray, values: np.ndarray) -> tuple[float, float] | None:
@@ -279,7 +303,7 @@ def _tick_length(ink: np.ndarray, plot: BBox, marks: dict[str, list[float]]) -> 
 
 def _raster_label_spans(rgb: np.ndarray, plot: BBox, marks: dict[str, list[float]]) -> list[TextSpan]:
     height, width = rgb.shape[:2]
-    reach = _tick_length(ink_mask(rgb, threshold=45.0), plot, marks)
+    reach = _tick_length(ink_mask(rgb, threshold=TICK_INK), plot, marks)
     pad_y, pad_x = 0.06 * height, 0.06 * width
     left = ocr_words(rgb, (0, plot[1] - pad_y, plot[0] - reach, plot[3] + pad_y), psm=6)
     below = ocr_words(rgb, (plot[0] - pad_x, plot[3] + reach, plot[2] + pad_x, min(height, plot[3] + 0.25 * height)), psm=6)
@@ -307,81 +331,345 @@ def axes(figure: Figure, measurements) -> Axes:
 
 @dataclass(frozen=True)
 class LabelAngle:
-    angle: float  # magnitude of the rotation of the x tick labels, degrees (0..90)
+    angle: float  # magnitude of the rotation of one axis's tick labels, degrees (0..90)
     region: BBox  # where the labels are
     count: int  # labels the angle was read from
 
 
-def _raster_label_angle(rgb: np.ndarray, plot: BBox, marks: dict[str, list[float]]) -> LabelAngle:
+@dataclass(frozen=True)
+class LabelBlob:
+    """One tick label on a raster, found from its ink: the glyphs grouped by proximity."""
+
+    bbox: BBox  # figure pixels
+    angle: float | None  # reading direction, degrees counter-clockwise in (-90, 90]; None: not measurable
+    glyphs: int  # glyph components in the label
+    mask: np.ndarray  # the label's ink inside bbox (bool), so a neighbour's ink can be left out
+    glyph_ids: np.ndarray  # inside bbox: a number per glyph of text size, 0 elsewhere (dots left out)
+    clipped: bool  # touches the image edge: the label may be cut off, its text incomplete
+
+
+MIN_ELONGATION = 2.0  # ink spread along / across: text lines are long, single glyphs are not
+BASELINE_SEARCH = 12.0  # degrees either side of the rectangles' angle searched for the baseline
+GLYPH_GAP_SHARE = 0.45  # glyphs closer than this share of the glyph height belong to one label
+
+
+def _fold(angle: float) -> float:
+    """A line's direction folded to (-90, 90]: text is read left to right."""
+    return angle - 180 if angle > 90 else angle + 180 if angle <= -90 else angle
+
+
+def _label_angle(ink: np.ndarray, glyph_centres: np.ndarray) -> float | None:
+    """A label's reading direction (degrees counter-clockwise), None when it shows none.
+
+    The rectangle of least area around the label's ink lies along its reading direction: its
+    long sides touch the glyph tops and bottoms, so glyph shapes do not tilt it (the principal
+    axis of the ink does: a capital at the start pulls it by 2-5 degrees). A label that is not
+    longer than tall ('Q1' upright or rotated) falls back to the line through its glyph centres;
+    a single glyph shows no direction.
+    """
     import cv2
 
-    height, width = rgb.shape[:2]
-    top = int(plot[3]) + _tick_length(ink_mask(rgb, threshold=45.0), plot, marks)
-    bottom = min(height, int(plot[3] + 0.35 * height))
-    x0, x1 = max(0, int(plot[0]) + 1), min(width, int(plot[2] + 0.08 * width))
-    if bottom - top < 5:
-        raise MeasurementUnavailable("no room below the plot area for tick labels")
-    background = background_rgb(rgb)
-    ink = ink_mask(rgb[top:bottom, x0:x1], background, threshold=80.0).astype(np.uint8)
-    merged = cv2.dilate(ink, np.ones((3, 3), np.uint8), iterations=2)
+    ys, xs = np.nonzero(ink)
+    if len(xs) < 8:
+        return None
+    (_, _), (width, height), angle = cv2.minAreaRect(np.column_stack([xs, ys]).astype(np.float32))
+    long, short = max(width, height), min(width, height)
+    if long >= MIN_ELONGATION * short or (len(glyph_centres) >= 2 and long >= 1.3 * short):
+        long_side = angle if width >= height else angle + 90  # cv2 angle: of the 'width' side, image rows down
+        return _fold(-long_side)
+    if len(glyph_centres) >= 2:
+        centred = glyph_centres - glyph_centres.mean(axis=0)
+        vx, vy = np.linalg.eigh(np.cov(centred.T))[1][:, 1]
+        return _fold(float(np.degrees(np.arctan2(-vy, vx))))
+    return None
+
+
+def _label_row(stats: np.ndarray, side: str, glyph_height: float) -> np.ndarray:
+    """The labels nearest the axis: tops aligned under the x axis, right ends beside the y axis.
+
+    The edge shared by the most labels near the axis wins, so a stray mark nearer the axis
+    (an i-dot, a tick label of the other axis) does not set the row.
+    """
+    edge = stats[:, 2].astype(float) if side == "x" else -(stats[:, 1] + stats[:, 3]).astype(float)
+    tolerance = max(4.0, 0.6 * glyph_height)
+    near = edge[edge <= edge.min() + 3 * glyph_height]
+    support = [(np.abs(near - e) <= tolerance).sum() for e in near]
+    reference = min(e for e, n in zip(near, support) if n == max(support))
+    return stats[np.abs(edge - reference) <= tolerance]
+
+
+def _label_strip(shape: tuple[int, int], plot: BBox, reach: int, side: str) -> tuple[int, int, int, int]:
+    height, width = shape
+    if side == "x":  # below the plot, wide enough for labels rotated away from their tick
+        return (max(0, int(plot[0] - 0.08 * width)), min(height, int(plot[3]) + reach),
+                min(width, int(plot[2] + 0.08 * width)), min(height, int(plot[3] + 0.35 * height)))
+    return (0, max(0, int(plot[1] - 0.04 * height)), max(0, int(plot[0]) - reach),
+            min(height, int(plot[3] + 0.04 * height)))
+
+
+def _touches_edge(bx: int, by: int, bw: int, bh: int, origin: tuple[int, int], shape: tuple[int, int]) -> bool:
+    x, y = origin[0] + bx, origin[1] + by
+    return x <= 0 or y <= 0 or x + bw >= shape[1] or y + bh >= shape[0]
+
+
+def raster_label_blobs(rgb: np.ndarray, plot: BBox, marks: dict[str, list[float]], side: str) -> tuple[LabelBlob, ...]:
+    """Tick labels beside one axis as ink blobs with their reading direction, in order along the axis."""
+    import cv2
+
+    reach = _tick_length(ink_mask(rgb, threshold=TICK_INK), plot, marks)
+    x0, y0, x1, y1 = _label_strip(rgb.shape[:2], plot, reach, side)
+    if x1 - x0 < 5 or y1 - y0 < 5:
+        return ()
+    ink = ink_mask(rgb[y0:y1, x0:x1], background_rgb(rgb), threshold=80.0)
+    glyph_labels, glyphs, centres = component_stats(ink, min_area=4)
+    glyphs_kept = glyphs[:, 4] <= 0.3 * rgb.shape[0]  # taller marks are shapes (a legend, a bar), not text
+    glyphs, centres = glyphs[glyphs_kept], centres[glyphs_kept]
+    if len(glyphs) == 0:
+        return ()
+    glyph_height = float(np.median(np.maximum(glyphs[:, 3], glyphs[:, 4])))
+    radius = max(1, int(round(GLYPH_GAP_SHARE * glyph_height / 2)))
+    disc = cv2.getStructuringElement(cv2.MORPH_ELLIPSE, (2 * radius + 1, 2 * radius + 1))
+    merged = cv2.dilate(ink.astype(np.uint8), disc)
     labels, stats, _ = component_stats(merged, min_area=12)
+    stats = stats[stats[:, 4] <= 0.3 * rgb.shape[0]]
     if len(stats) == 0:
-        raise MeasurementUnavailable("no tick labels below the plot area")
-    first_row = stats[:, 2].min()
-    row = stats[stats[:, 2] <= first_row + max(4, 0.02 * height)]
-    angles, elongated_any = [], False
-    for index, bx, by, bw, bh, _ in row:
-        ys, xs = np.nonzero((labels[by:by + bh, bx:bx + bw] == index) & (ink[by:by + bh, bx:bx + bw] > 0))
-        if len(xs) < 8:
-            continue
-        coords = np.column_stack([xs, ys]).astype(float)
-        coords -= coords.mean(axis=0)
-        eigenvalues, eigenvectors = np.linalg.eigh(np.cov(coords.T))
-        elongation = np.sqrt(eigenvalues[1] / max(eigenvalues[0], 1e-9))
-        if elongation >= 2.2:
-            vx, vy = eigenvectors[:, 1]
-            angles.append(abs(np.degrees(np.arctan2(-vy, vx))) % 180)
-            elongated_any = True
-        elif bw >= 0.6 * bh:
-            angles.append(0.0)
-    if not angles:
-        raise MeasurementUnavailable("tick label direction not readable")
-    folded = [min(a, 180 - a) for a in angles]
-    region = (float(x0 + row[:, 1].min()), float(top + row[:, 2].min()),
-              float(x0 + (row[:, 1] + row[:, 3]).max()), float(top + (row[:, 2] + row[:, 4]).max()))
-    if elongated_any and len(row) >= 2 and len(folded) < 0.5 * len(row):
-        raise MeasurementUnavailable("tick label direction not readable")
-    return LabelAngle(angle=float(np.median(folded)), region=region, count=len(folded))
+        return ()
+    owner_of = np.zeros(glyph_labels.max() + 1, int)  # the label each glyph belongs to
+    owner_of[glyph_labels[ink]] = labels[ink]
+    owner = owner_of[glyphs[:, 0]]
+    large = glyphs[:, 5] >= 0.15 * np.median(glyphs[:, 5])  # dots and accents do not mark the line
+    # A label holds a glyph of text size: fragments of tick marks and frame lines do not.
+    texty = np.isin(stats[:, 0], owner[large & (np.maximum(glyphs[:, 3], glyphs[:, 4]) >= 0.5 * glyph_height)])
+    # Beside the plot along the axis: the other axis's labels reach into the strip at its corner.
+    if side == "x":
+        beside = x0 + stats[:, 1] + stats[:, 3] > plot[0]
+    else:
+        middle = y0 + stats[:, 2] + stats[:, 4] / 2
+        beside = (middle >= plot[1] - glyph_height) & (middle <= plot[3] + glyph_height)
+    stats = stats[texty & beside]
+    if len(stats) == 0:
+        return ()
+    blobs = []
+    for index, bx, by, bw, bh, _ in _label_row(stats, side, glyph_height):
+        mask = (labels[by:by + bh, bx:bx + bw] == index) & ink[by:by + bh, bx:bx + bw]
+        members = (owner == index) & large
+        ids = glyph_labels[by:by + bh, bx:bx + bw] * mask
+        ids[~np.isin(ids, glyphs[members, 0])] = 0
+        blobs.append(LabelBlob(bbox=(float(x0 + bx), float(y0 + by), float(x0 + bx + bw), float(y0 + by + bh)),
+                               angle=_label_angle(mask, centres[members]), glyphs=int(members.sum()), mask=mask,
+                               glyph_ids=ids, clipped=_touches_edge(bx, by, bw, bh, (x0, y0), rgb.shape[:2])))
+    along = 0 if side == "x" else 1
+    return tuple(sorted(blobs, key=lambda b: b.bbox[along] + b.bbox[along + 2]))
+
+
+@measurement("label_blobs")
+def label_blobs(figure: Figure, measurements) -> dict[str, tuple[LabelBlob, ...]]:
+    """Raster tick labels found from their ink, per axis: {'x': (...), 'y': (...)}."""
+    rgb = require_pixels(figure)
+    plot = measurements.get("plot_area")
+    marks = measurements.get("tick_marks")
+    return {side: raster_label_blobs(rgb, plot, marks, side) for side in ("x", "y")}
+
+
+def _rectangle_angle(blobs: tuple[LabelBlob, ...]) -> float | None:
+    """The angle at which the labels' bounding rectangles, turned to it, have the least total area.
+
+    Of the two perpendicular answers, the reading direction is the one along which the labels
+    are long. None when no label is longer than tall.
+    """
+    point_sets = []
+    for blob in blobs:
+        ys, xs = np.nonzero(blob.mask)
+        if len(xs) >= 8:
+            point_sets.append(np.column_stack([xs, -ys]).astype(float))
+    if not point_sets or all(b.angle is None for b in blobs):
+        return None
+
+    def extents(theta: float) -> np.ndarray:
+        t = np.radians(theta)
+        along, across = np.array([np.cos(t), np.sin(t)]), np.array([-np.sin(t), np.cos(t)])
+        return np.array([(np.ptp(p @ along), np.ptp(p @ across)) for p in point_sets])
+
+    def total_area(theta: float) -> float:
+        sizes = extents(theta)
+        return float((sizes[:, 0] * sizes[:, 1]).sum())
+
+    best = float(min(np.arange(0.0, 90.0, 1.0), key=total_area))
+    sizes = extents(best)
+    return _fold(best if sizes[:, 0].sum() >= sizes[:, 1].sum() else best + 90.0)
+
+
+def common_label_angle(blobs: tuple[LabelBlob, ...]) -> float | None:
+    """The one reading direction of a row of labels (degrees counter-clockwise, (-90, 90]).
+
+    Labels of one axis share their rotation, so the direction is searched jointly. First
+    coarsely, from the labels' bounding rectangles (_rectangle_angle): a capital or a
+    descender tilts the rectangle of a short word by several degrees. Then, within
+    BASELINE_SEARCH of it, the angle at which the glyphs of each label stand on one
+    baseline: their lowest points, in the frame turned to that angle, deviate least from
+    the label's median, the third of largest deviations left out (so the descenders of g, p,
+    y do not tilt it). None when no label is longer than tall.
+    """
+    coarse = _rectangle_angle(blobs)
+    if coarse is None:
+        return None
+    words = []
+    for blob in blobs:
+        ids = blob.glyph_ids
+        found = np.unique(ids[ids > 0])
+        if len(found) >= 3:  # two glyphs ('Q1': the tail of Q) may stand on no common line
+            ys, xs = np.nonzero(ids)
+            words.append((np.column_stack([xs, -ys]).astype(float), ids[ys, xs], found))
+    if not words:
+        return coarse
+
+    def spread(theta: float) -> float:
+        t = np.radians(theta)
+        across = np.array([-np.sin(t), np.cos(t)])
+        total = 0.0
+        for points, owner, found in words:
+            height = points @ across
+            bottoms = np.array([height[owner == g].min() for g in found])
+            deviations = np.sort(np.abs(bottoms - np.median(bottoms)))
+            total += float(deviations[:len(deviations) - len(deviations) // 3].sum())  # descenders left out
+        return total
+
+    steps = np.arange(coarse - BASELINE_SEARCH, coarse + BASELINE_SEARCH + 0.01, 0.25)
+    return _fold(float(min(steps, key=spread)))
+
+
+def _raster_label_angle(blobs: tuple[LabelBlob, ...]) -> LabelAngle:
+    if not blobs:
+        raise MeasurementUnavailable("no tick labels found beside the axis")
+    angle = common_label_angle(blobs)
+    if angle is None:
+        # Single glyphs ('A', '5') show no direction; upright glyphs are at most as wide as tall.
+        if np.median([(b.bbox[2] - b.bbox[0]) / (b.bbox[3] - b.bbox[1]) for b in blobs]) > 1.0:
+            raise MeasurementUnavailable("tick label direction not readable")
+        angle = 0.0
+    region = (min(b.bbox[0] for b in blobs), min(b.bbox[1] for b in blobs),
+              max(b.bbox[2] for b in blobs), max(b.bbox[3] for b in blobs))
+    return LabelAngle(angle=abs(angle), region=region, count=len(blobs))
+
+
+def _vector_label_angle(figure: Figure, plot: BBox, side: str) -> LabelAngle:
+    labels = _select_labels(figure.vector.texts, plot, side, figure.vector.scale)
+    if not labels:
+        raise MeasurementUnavailable(f"no {side} tick labels")
+    folded = [min(abs(s.angle) % 180, 180 - abs(s.angle) % 180) for s in labels]
+    region = (min(s.bbox[0] for s in labels), min(s.bbox[1] for s in labels),
+              max(s.bbox[2] for s in labels), max(s.bbox[3] for s in labels))
+    return LabelAngle(angle=float(np.median(folded)), region=region, count=len(labels))
 
 
 @measurement("tick_label_angle")
 def tick_label_angle(figure: Figure, measurements) -> LabelAngle:
-    """Rotation of the x-axis tick labels (vector: stated angle; raster: label blob direction)."""
+    """Rotation of the x-axis tick labels (vector: stated angle; raster: from the labels' glyphs)."""
     plot = measurements.get("plot_area")
     if is_vector(figure):
-        labels = _select_labels(figure.vector.texts, plot, "x", figure.vector.scale)
-        if not labels:
-            raise MeasurementUnavailable("no x tick labels")
-        folded = [min(abs(s.angle) % 180, 180 - abs(s.angle) % 180) for s in labels]
-        region = (min(s.bbox[0] for s in labels), min(s.bbox[1] for s in labels),
-                  max(s.bbox[2] for s in labels), max(s.bbox[3] for s in labels))
-        return LabelAngle(angle=float(np.median(folded)), region=region, count=len(labels))
-    return _raster_label_angle(require_pixels(figure), plot, measurements.get("tick_marks"))
+        return _vector_label_angle(figure, plot, "x")
+    return _raster_label_angle(measurements.get("label_blobs")["x"])
 
 
-_MONTHS = ["jan", "feb", "mar", "apr", "may", "jun", "jul", "aug", "sep", "oct", "nov", "dec"]
-_WEEKDAYS = ["mon", "tue", "wed", "thu", "fri", "sat", "sun"]
+@measurement("y_tick_label_angle")
+def y_tick_label_angle(figure: Figure, measurements) -> LabelAngle:
+    """Rotation of the y-axis tick labels: the category labels of a horizontal bar chart."""
+    plot = measurements.get("plot_area")
+    if is_vector(figure):
+        return _vector_label_angle(figure, plot, "y")
+    return _raster_label_angle(measurements.get("label_blobs")["y"])
 
 
-def _ordinal_key(label: str) -> float | None:
+# ------------------------------------------------------------------ label text (rasters)
+
+
+def _turned_label(rgb: np.ndarray, blob: LabelBlob, angle: float, background: np.ndarray) -> np.ndarray:
+    """The label alone (its neighbours' ink blanked), turned so that it reads horizontally."""
+    import cv2
+
+    x0, y0, x1, y1 = (int(round(v)) for v in blob.bbox)
+    keep = cv2.dilate(blob.mask.astype(np.uint8), np.ones((5, 5), np.uint8)) > 0  # with its antialiased edges
+    crop = np.empty((y1 - y0, x1 - x0, 3), np.uint8)
+    crop[:] = background.astype(np.uint8)
+    crop[keep] = rgb[y0:y1, x0:x1][keep]
+    height, width = crop.shape[:2]
+    turn = cv2.getRotationMatrix2D((width / 2, height / 2), -angle, 1.0)  # OpenCV: positive turns counter-clockwise
+    cos, sin = abs(turn[0, 0]), abs(turn[0, 1])
+    size = (int(np.ceil(width * cos + height * sin)) + 8, int(np.ceil(width * sin + height * cos)) + 8)
+    turn[0, 2] += size[0] / 2 - width / 2
+    turn[1, 2] += size[1] / 2 - height / 2
+    colour = tuple(float(v) for v in background)
+    return cv2.warpAffine(crop, turn, size, flags=cv2.INTER_CUBIC, borderValue=colour)
+
+
+def _read_turned(image: np.ndarray) -> str:
+    words = ocr_words(image, (0, 0, image.shape[1], image.shape[0]), psm=7)
+    return " ".join(w.text for w in sorted(words, key=lambda w: w.bbox[0]))
+
+
+def _looks_like_label(text: str) -> bool:
+    return bool(re.fullmatch(r"[A-Za-z0-9][A-Za-z0-9 .,'%&()/-]*", text)) and sum(c.isalnum() for c in text) >= 1
+
+
+def read_label_blobs(rgb: np.ndarray, blobs: tuple[LabelBlob, ...], side: str) -> tuple[Tick, ...]:
+    """Each label's text, read by OCR with the label turned to read horizontally.
+
+    The whole row turns by its common angle; a label that does not read as a word turned
+    that way is tried upside down (vertical text may run either way). Only the labels are
+    read, never the whole figure: recognition is the dearest step of the audit.
+    """
+    angle = common_label_angle(blobs)
+    angle = 0.0 if angle is None else angle
+    background = background_rgb(rgb)
+    along = 0 if side == "x" else 1
+    ticks = []
+    for blob in blobs:
+        text = ""
+        for turn in (angle, angle - 180.0):
+            text = _read_turned(_turned_label(rgb, blob, turn, background))
+            if _looks_like_label(text):
+                break
+        ticks.append(Tick(pixel=(blob.bbox[along] + blob.bbox[along + 2]) / 2, text=text, value=_number_text(text),
+                          angle=angle, bbox=blob.bbox))
+    return tuple(ticks)
+
+
+def _number_text(text: str) -> float | None:
+    """The number of a label read by OCR, with the usual misreads of digits undone ('1O' -> 10)."""
+    value = parse_number(text)
+    if value is None and any(ch.isdigit() for ch in text):
+        value = parse_number(text.translate(_OCR_DIGIT_FIXES))
+    return value
+
+
+@measurement("x_label_texts")
+def x_label_texts(figure: Figure, measurements) -> tuple[Tick, ...]:
+    """Raster x tick labels read one by one, turned to their angle (in order along the axis)."""
+    return read_label_blobs(require_pixels(figure), measurements.get("label_blobs")["x"], "x")
+
+
+@measurement("y_label_texts")
+def y_label_texts(figure: Figure, measurements) -> tuple[Tick, ...]:
+    """Raster y tick labels read one by one (top to bottom)."""
+    return read_label_blobs(require_pixels(figure), measurements.get("label_blobs")["y"], "y")
+
+
+_MONTHS = ["january", "february", "march", "april", "may", "june", "july", "august", "september", "october",
+           "november", "december"]
+_WEEKDAYS = ["monday", "tuesday", "wednesday", "thursday", "friday", "saturday", "sunday"]
+
+
+def ordinal_key(label: str) -> float | None:
     """Position of a label in a natural sequence (month, weekday, Q1.., numbers), else None."""
     text = label.strip().lower()
     number = parse_number(text)
     if number is not None:
         return number
-    for vocabulary in (_MONTHS, _WEEKDAYS):
-        if text[:3] in vocabulary and text.isalpha():
-            return float(vocabulary.index(text[:3]))
+    word = text.rstrip(".")
+    for vocabulary in (_MONTHS, _WEEKDAYS):  # the name or its abbreviation ('Sep', 'Sept'), not 'Saturn'
+        for index, name in enumerate(vocabulary):
+            if len(word) >= 3 and name.startswith(word):
+                return float(index)
     match = re.fullmatch(r"([a-z]{0,8}?)\s*[-#]?\s*(\d+)", text)  # 'Q1', 'Week 3', 'Grade 10'
     if match:
         return float(match.group(2))
@@ -392,7 +680,7 @@ def natural_order(labels: list[str]) -> str | None:
     """'numeric'/'calendar'/'ordinal' or 'alphabetical' when labels follow that order, else None."""
     if len(labels) < 2:
         return None
-    keys = [_ordinal_key(label) for label in labels]
+    keys = [ordinal_key(label) for label in labels]
     if all(k is not None for k in keys):
         ascending = all(a < b for a, b in zip(keys, keys[1:]))
         descending = all(a > b for a, b in zip(keys, keys[1:]))
@@ -406,4 +694,4 @@ def natural_order(labels: list[str]) -> str | None:
 
 def is_ordered_vocabulary(labels: list[str]) -> bool:
     """Labels that name points of an ordered scale (numbers, months, weekdays, Q1..)."""
-    return bool(labels) and all(_ordinal_key(label) is not None for label in labels)
+    return bool(labels) and all(ordinal_key(label) is not None for label in labels)

@@ -15,11 +15,12 @@ import numpy as np
 from corpusaudit.measure import measurement
 from corpusaudit.measure.legend import in_any
 from corpusaudit.measure.shapes import (
-    bbox_area, colour_distance, colour_key, component_stats, intersect, is_vector, require_pixels,
+    background_rgb, bbox_area, colour_distance, colour_key, component_stats, intersect, is_vector, require_pixels,
 )
 from corpusaudit.model import BBox, Figure, MeasurementUnavailable
 
 
+PAGE_TINT = 30.0  # palette colours this close to the page (0..255 sRGB distance) are edge halos
 RASTER_TOUCH = 4  # pixels: raster rectangles this close (a separator line, antialiasing) touch
 
 
@@ -80,8 +81,11 @@ def _raster_rects(rgb: np.ndarray, plot: BBox) -> list[Bar]:
     if inner.size == 0:
         return []
     bars = []
+    page = background_rgb(rgb)
     for colour in extract_palette(np.ascontiguousarray(inner), max_colours=12, min_share=0.01):
         rgb255 = np.asarray(colour.rgb) * 255.0
+        if float(np.linalg.norm(rgb255 - page)) < PAGE_TINT:
+            continue  # the halo of antialiased or JPEG-blurred edges against the page, not a bar
         mask = (colour_distance(inner, rgb255) < 28).astype(np.uint8)
         # Grid lines drawn over the bars and separator lines cut a bar into pieces: closing
         # bridges cuts up to RASTER_TOUCH pixels wide; opening then drops text and thin lines.
