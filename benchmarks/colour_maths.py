@@ -13,6 +13,7 @@ import numpy as np
 from PIL import Image, ImageDraw
 
 from corpusaudit.measure import colour as cm
+from corpusaudit.workers import single_threaded_libraries
 
 REPEATS = 5
 
@@ -50,6 +51,11 @@ def best_time(function, *args) -> tuple[float, object]:
 
 
 def main() -> None:
+    with single_threaded_libraries():  # as in the audit's workers: one core per document
+        report()
+
+
+def report() -> None:
     image = chart_image()
     lab_ms, _ = best_time(cm.srgb_to_lab, image)
     cvd_ms = {d: best_time(cm.simulate_cvd, image, d)[0] for d in cm.DEFICIENCIES}

@@ -8,11 +8,15 @@ in completion order as (task, result) pairs or (task, Failure).
 
 from __future__ import annotations
 
+import contextlib
+import ctypes
 import faulthandler
 import gc
 import multiprocessing as mp
 import os
 import resource
+import signal
+import sys
 import time
 from dataclasses import dataclass
 from multiprocessing.connection import Connection, wait
@@ -37,7 +41,41 @@ def resident_bytes(pid: int) -> int:
         return 0
 
 
-def _serve(function: Callable[[Any], Any], connection: Connection) -> None:
+@contextlib.contextmanager
+def single_threaded_libraries():
+    """One thread each for BLAS, OpenMP and OpenCV while the pool runs: parallelism comes from
+    the document workers (--jobs), and per-figure arrays are too small to share out (threads
+    spinning on the other workers' cores made colour maths six times slower on two cores).
+    Set in the parent before forking: changing a thread pool inside a forked child can
+    deadlock on a lock the parent's threads held at the fork."""
+    import cv2
+    from threadpoolctl import threadpool_limits
+
+    threads = cv2.getNumThreads()
+    cv2.setNumThreads(1)
+    try:
+        with threadpool_limits(limits=1):
+            yield
+    finally:
+        cv2.setNumThreads(threads)
+
+
+PR_SET_PDEATHSIG = 1  # linux/prctl.h
+
+
+def _die_with(parent: int) -> None:
+    """Ask the kernel to kill this worker when the audit process dies (kill -9 included).
+
+    Otherwise an orphaned worker waits for ever to send its result: its siblings, forked
+    after it, hold copies of the parent's end of its pipe, so the pipe never breaks."""
+    if sys.platform.startswith("linux"):
+        ctypes.CDLL(None, use_errno=True).prctl(PR_SET_PDEATHSIG, signal.SIGKILL)
+    if os.getppid() != parent:  # the parent died before the request took effect
+        os._exit(1)
+
+
+def _serve(function: Callable[[Any], Any], connection: Connection, parent: int) -> None:
+    _die_with(parent)
     # A native crash is reported by the parent as this document's error; a traceback dump
     # inherited from the parent (pytest enables one) would only clutter the log.
     faulthandler.disable()
@@ -66,7 +104,7 @@ def _serve(function: Callable[[Any], Any], connection: Connection) -> None:
 class _Worker:
     def __init__(self, context, function):
         self.connection, child = context.Pipe()
-        self.process = context.Process(target=_serve, args=(function, child), daemon=True)
+        self.process = context.Process(target=_serve, args=(function, child, os.getpid()), daemon=True)
         self.process.start()
         child.close()
         self.task: Any = None
@@ -104,6 +142,11 @@ def run_pool(function: Callable[[Any], Any], tasks: Iterable[Any], jobs: int, ti
     # documents or threads of its own while workers run; spawn where fork does not exist.
     context = mp.get_context("fork" if "fork" in mp.get_all_start_methods() else "spawn")
     queue = list(tasks)[::-1]
+    with single_threaded_libraries():
+        yield from _run(context, function, queue, jobs, time_limit, memory_limit, on_peak, recycle_after)
+
+
+def _run(context, function, queue, jobs, time_limit, memory_limit, on_peak, recycle_after):
     workers = [_Worker(context, function) for _ in range(min(jobs, len(queue)))]
     try:
         while queue or any(w.task is not None for w in workers):

@@ -151,8 +151,25 @@ def test_kill_9_then_rerun_equals_an_uninterrupted_run(tmp_path):
         time.sleep(0.05)
     process.send_signal(signal.SIGKILL)
     process.wait()
+    assert _workers_gone(str(out)), "a worker outlived the killed audit"
     main(["audit", str(corpus), "--out", str(out), "--quiet", "--jobs", "1"])
     assert _tables(out) == _tables(reference)
+
+
+def _workers_gone(out: str, wait_s: float = 10.0) -> bool:
+    """No process whose command line names this output folder is left (Linux /proc)."""
+    deadline = time.monotonic() + wait_s
+    while time.monotonic() < deadline:
+        alive = []
+        for cmdline in Path("/proc").glob("[0-9]*/cmdline"):
+            try:
+                alive.append(out in cmdline.read_bytes().decode(errors="replace").split("\0"))
+            except OSError:  # the process ended while we looked
+                continue
+        if not any(alive):
+            return True
+        time.sleep(0.1)
+    return False
 
 
 def test_changed_configuration_invalidates_the_cache(tmp_path, capsys):
