@@ -51,7 +51,7 @@ def _add_run_options(command: argparse.ArgumentParser, manifest: bool = True) ->
     command.add_argument("--timeout", type=float, default=120.0, metavar="S",
                          help="time limit per document in seconds (default 120)")
     command.add_argument("--memory-limit", type=int, default=2048, metavar="MB",
-                         help="resident memory ceiling per worker (default 2048)")
+                         help="memory ceiling per worker, its own pages (default 2048)")
     command.add_argument("--password-file", type=Path, metavar="FILE",
                          help="passwords to try on encrypted PDFs, one per line")
     command.add_argument("--executor", choices=("local", "dask"), default="local",

@@ -41,6 +41,18 @@ def resident_bytes(pid: int) -> int:
         return 0
 
 
+def private_bytes(pid: int) -> int:
+    """Memory a worker holds of its own (private pages, Linux smaps_rollup); its resident size
+    where that is unknown. A forked worker's resident size also counts the pages it still
+    shares with the audit process, which the ceiling must not charge to the document."""
+    try:
+        with open(f"/proc/{pid}/smaps_rollup", "rb") as handle:
+            fields = dict(line.split(b":", 1) for line in handle.read().splitlines() if b":" in line)
+        return sum(int(fields[key].split()[0]) for key in (b"Private_Clean", b"Private_Dirty")) * 1024
+    except (OSError, KeyError, IndexError, ValueError):
+        return resident_bytes(pid)
+
+
 @contextlib.contextmanager
 def single_threaded_libraries():
     """One thread each for BLAS, OpenMP and OpenCV while the pool runs: parallelism comes from
@@ -175,9 +187,8 @@ def _run(context, function, queue, jobs, time_limit, memory_limit, on_peak, recy
                     outcome, replace = Failure("timeout", f"time limit of {time_limit:g} s exceeded"), True
                     worker.kill()
                 else:
-                    rss = resident_bytes(worker.process.pid)
-                    worker.peak_rss = max(worker.peak_rss, rss)
-                    if memory_limit and rss > memory_limit:
+                    worker.peak_rss = max(worker.peak_rss, resident_bytes(worker.process.pid))
+                    if memory_limit and private_bytes(worker.process.pid) > memory_limit:
                         outcome = Failure("error", f"memory ceiling of {memory_limit // 2**20} MiB exceeded")
                         replace = True
                         worker.kill()
