@@ -59,3 +59,18 @@ def iou(a, b) -> float:
     iy = max(0.0, min(a[3], b[3]) - max(a[1], b[1]))
     union = (a[2] - a[0]) * (a[3] - a[1]) + (b[2] - b[0]) * (b[3] - b[1]) - ix * iy
     return ix * iy / union
+
+
+def ruled_table(page: pymupdf.Page, x0: float, y0: float, rows: int = 5, cols: int = 4) -> pymupdf.Rect:
+    """A ruled table of invented numbers (a table must not be reported as a figure)."""
+    shape = page.new_shape()
+    for r in range(rows + 1):
+        shape.draw_line((x0, y0 + 16 * r), (x0 + 60 * cols, y0 + 16 * r))
+    for c in range(cols + 1):
+        shape.draw_line((x0 + 60 * c, y0), (x0 + 60 * c, y0 + 16 * rows))
+    shape.finish(color=(0, 0, 0), width=0.5)
+    shape.commit()
+    for r in range(rows):
+        for c in range(cols):
+            page.insert_text((x0 + 60 * c + 4, y0 + 16 * r + 12), f"{r * 7 + c * 3}.5", fontsize=9)
+    return pymupdf.Rect(x0, y0, x0 + 60 * cols, y0 + 16 * rows)

@@ -7,7 +7,7 @@ import pymupdf
 import pytest
 from PIL import Image
 
-from tests.extract_fixtures import extract, image_bytes, iou, place_chart
+from tests.extract_fixtures import extract, image_bytes, iou, place_chart, ruled_table
 
 
 def _save(doc: pymupdf.Document, path):
@@ -108,23 +108,10 @@ def test_tiny_icons_are_decorations(tmp_path):
     assert result.figures == [] and result.decorations == 1
 
 
-def _table(page: pymupdf.Page, x0: float, y0: float, rows: int = 5, cols: int = 4) -> None:
-    shape = page.new_shape()
-    for r in range(rows + 1):
-        shape.draw_line((x0, y0 + 16 * r), (x0 + 60 * cols, y0 + 16 * r))
-    for c in range(cols + 1):
-        shape.draw_line((x0 + 60 * c, y0), (x0 + 60 * c, y0 + 16 * rows))
-    shape.finish(color=(0, 0, 0), width=0.5)
-    shape.commit()
-    for r in range(rows):
-        for c in range(cols):
-            page.insert_text((x0 + 60 * c + 4, y0 + 16 * r + 12), f"{r * 7 + c * 3}.5", fontsize=9)
-
-
 def test_table_rules_underlines_and_text_frames_are_not_figures(tmp_path):
     doc = pymupdf.open()
     page = doc.new_page()
-    _table(page, 72, 100)
+    ruled_table(page, 72, 100)
     page.insert_text((72, 300), "An underlined line of body text", fontsize=10)
     page.draw_line((72, 302), (250, 302), width=0.6)
     page.draw_rect(pymupdf.Rect(70, 350, 400, 420), width=0.8)  # a frame around a text block

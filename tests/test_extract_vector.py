@@ -11,7 +11,7 @@ from matplotlib.figure import Figure as MplFigure
 
 from corpusaudit.extract.regions import group_ink
 from corpusaudit.extract.vector_evidence import vector_evidence
-from tests.extract_fixtures import extract, iou
+from tests.extract_fixtures import extract, iou, ruled_table
 
 
 def _labelled_chart() -> tuple[bytes, dict[str, tuple[float, float]]]:
@@ -182,26 +182,12 @@ def test_a_paragraph_just_above_a_chart_is_not_taken_as_its_title(tmp_path):
     assert "twice in the invented season." not in {t.text for t in figure.vector.texts}
 
 
-def _ruled_table(page: pymupdf.Page, x0: float, y0: float, rows: int = 5, cols: int = 4) -> pymupdf.Rect:
-    shape = page.new_shape()
-    for r in range(rows + 1):
-        shape.draw_line((x0, y0 + 16 * r), (x0 + 60 * cols, y0 + 16 * r))
-    for c in range(cols + 1):
-        shape.draw_line((x0 + 60 * c, y0), (x0 + 60 * c, y0 + 16 * rows))
-    shape.finish(color=(0, 0, 0), width=0.5)
-    shape.commit()
-    for r in range(rows):
-        for c in range(cols):
-            page.insert_text((x0 + 60 * c + 4, y0 + 16 * r + 12), f"{r * 7 + c * 3}.5", fontsize=9)
-    return pymupdf.Rect(x0, y0, x0 + 60 * cols, y0 + 16 * rows)
-
-
 def test_a_table_its_author_captioned_as_a_figure_is_a_figure(tmp_path):
     doc = pymupdf.open()
     page = doc.new_page()
-    table = _ruled_table(page, 72, 100)
+    table = ruled_table(page, 72, 100)
     page.insert_text((72, table.y1 + 14), "Figure 4. Survey effort by station.", fontsize=9)
-    _ruled_table(page, 72, 400)
+    ruled_table(page, 72, 400)
     page.insert_text((72, 390), "Table 2. Survey effort by month.", fontsize=9)  # a table's own caption
     (figure,) = extract(_save(doc, tmp_path / "tables.pdf")).figures
     assert (figure.source, figure.figure_number) == ("vector", "4")
