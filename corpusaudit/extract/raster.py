@@ -13,6 +13,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 import pymupdf
+from scipy.sparse import coo_matrix
+from scipy.sparse.csgraph import connected_components
 
 ABUT_TOLERANCE_PT = 1.5  # tiles written with rounded coordinates leave hairline gaps
 REPEATED_PAGE_SHARE = 0.6  # an image on this share of pages (3+) is a running logo or header
@@ -94,22 +96,11 @@ def placement_key(info: dict) -> tuple:
 
 
 def _union_find(count: int, pairs: np.ndarray) -> list[list[int]]:
-    parent = list(range(count))
-
-    def root(i: int) -> int:
-        while parent[i] != i:
-            parent[i] = parent[parent[i]]
-            i = parent[i]
-        return i
-
-    for i, j in pairs:
-        ri, rj = root(int(i)), root(int(j))
-        if ri != rj:
-            parent[max(ri, rj)] = min(ri, rj)
-    groups: dict[int, list[int]] = {}
-    for i in range(count):
-        groups.setdefault(root(i), []).append(i)
-    return list(groups.values())
+    """The groups of count items joined by pairs, each in index order, ordered by first item."""
+    pairs = np.asarray(pairs, dtype=np.int64).reshape(-1, 2)
+    edges = coo_matrix((np.ones(len(pairs), dtype=np.int8), (pairs[:, 0], pairs[:, 1])), shape=(count, count))
+    labels = connected_components(edges, directed=False)[1]
+    return [np.flatnonzero(labels == label).tolist() for label in range(labels.max() + 1)] if count else []
 
 
 def group_pieces(found: list[Placement]) -> list[PieceGroup]:

@@ -16,7 +16,7 @@ import cv2
 import numpy as np
 
 from corpusaudit.measure import colour, glyphs, measurement, quality
-from corpusaudit.measure.shapes import polyline_length, require_pixels
+from corpusaudit.measure.shapes import polyline_length, require_pixels, union_box
 from corpusaudit.model import RGB, BBox, Figure, MeasurementUnavailable, PathItem
 
 MAX_CATEGORICAL = 12  # more distinct chromatic colours than this: a continuous scale, not categories
@@ -111,13 +111,6 @@ class Compression:
 
 def _is_vector(figure: Figure) -> bool:
     return figure.source == "vector" and figure.vector is not None
-
-
-def _union(boxes: list[BBox]) -> BBox | None:
-    if not boxes:
-        return None
-    array = np.asarray(boxes, dtype=float)
-    return (float(array[:, 0].min()), float(array[:, 1].min()), float(array[:, 2].max()), float(array[:, 3].max()))
 
 
 def _polygon_area(points: list[tuple[float, float]]) -> float:
@@ -281,7 +274,7 @@ def palette(figure: Figure, measurements) -> Palette:
         regions = []
         for entry in chromatic:
             near = colour.delta_e_ciede2000(lab, np.asarray(entry.lab)) < 2.0
-            regions.append(_union([box for box, hit in zip(boxes, near) if hit]))
+            regions.append(union_box([box for box, hit in zip(boxes, near) if hit]))
     else:
         mask = np.zeros(pixels.shape[:2], dtype=bool)
         mask[EDGE_PX:-EDGE_PX, EDGE_PX:-EDGE_PX] = True

@@ -27,6 +27,8 @@ from dataclasses import dataclass
 
 import cv2
 import numpy as np
+from scipy.sparse import coo_matrix
+from scipy.sparse.csgraph import connected_components
 
 from corpusaudit.model import BBox, RGB
 
@@ -205,20 +207,10 @@ def _link(along0, along1, top, bottom, candidates: np.ndarray) -> np.ndarray:
 
 
 def _union_find(n: int, first: np.ndarray, second: np.ndarray) -> np.ndarray:
-    """Group label of each of n nodes joined by the edges (first[k], second[k])."""
-    parent = list(range(n))
-
-    def root(node: int) -> int:
-        while parent[node] != node:
-            parent[node] = parent[parent[node]]
-            node = parent[node]
-        return node
-
-    for a, b in zip(first.tolist(), second.tolist()):
-        ra, rb = root(a), root(b)
-        if ra != rb:
-            parent[max(ra, rb)] = min(ra, rb)
-    return np.array([root(node) for node in range(n)], dtype=np.int64)
+    """Group label of each of n nodes joined by the edges (first[k], second[k]); labels
+    are numbered in the order of each group's first node."""
+    edges = coo_matrix((np.ones(len(first), dtype=np.int8), (first, second)), shape=(n, n))
+    return connected_components(edges, directed=False)[1].astype(np.int64)
 
 
 def _shape(parts: _Components, k: int) -> np.ndarray:

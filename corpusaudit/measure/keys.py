@@ -16,7 +16,8 @@ import cv2
 import numpy as np
 
 from corpusaudit.measure import measurement
-from corpusaudit.measure.shapes import NEUTRAL_CHROMA, colour_key, is_neutral, is_vector, require_pixels
+from corpusaudit.measure.shapes import (NEUTRAL_CHROMA, colour_key, is_neutral, is_vector, require_pixels,
+                                         union_box)
 from corpusaudit.model import BBox, Figure, MeasurementUnavailable, PathItem, RGB, TextSpan
 
 GAP_HEIGHTS = 2.0  # the swatch's right edge may lie up to this many text heights left of the label
@@ -64,12 +65,6 @@ def _swatch_for(span: TextSpan, candidates: list[tuple[PathItem, RGB]]) -> tuple
         if best_gap is None or gap < best_gap:
             best, best_gap = (path, colour), gap
     return best
-
-
-def _union(boxes: list[BBox]) -> BBox | None:
-    if not boxes:
-        return None
-    return (min(b[0] for b in boxes), min(b[1] for b in boxes), max(b[2] for b in boxes), max(b[3] for b in boxes))
 
 
 def _part_of_data(swatch: PathItem, colour: RGB, data: list[PathItem]) -> bool:
@@ -166,7 +161,7 @@ def legend_keys(figure: Figure, measurements) -> LegendKeys:
     else:
         found = _distinct(_vector_keys(figure))
     keys = tuple(_aligned(found)) if len(found) > 1 else tuple(found)
-    return LegendKeys(keys=keys, region=_union([k.swatch for k in keys] + [k.label_box for k in keys]))
+    return LegendKeys(keys=keys, region=union_box([k.swatch for k in keys] + [k.label_box for k in keys]))
 
 
 def _vector_keys(figure: Figure) -> list[LegendKey]:

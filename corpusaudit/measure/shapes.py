@@ -44,6 +44,14 @@ def intersect(a: BBox, b: BBox) -> BBox | None:
     return box if box[2] > box[0] and box[3] > box[1] else None
 
 
+def union_box(boxes: list[BBox]) -> BBox | None:
+    """The smallest box holding every box; None for none."""
+    if not boxes:
+        return None
+    return (float(min(b[0] for b in boxes)), float(min(b[1] for b in boxes)),
+            float(max(b[2] for b in boxes)), float(max(b[3] for b in boxes)))
+
+
 def contains(outer: BBox, inner: BBox, tolerance: float = 0.0) -> bool:
     return (inner[0] >= outer[0] - tolerance and inner[1] >= outer[1] - tolerance
             and inner[2] <= outer[2] + tolerance and inner[3] <= outer[3] + tolerance)
