@@ -19,7 +19,7 @@ import pymupdf
 
 from corpusaudit import __version__
 from corpusaudit.checks.runner import check_figure
-from corpusaudit.classify import Classifier, ModelIntegrityError, load_classifier
+from corpusaudit.classify import Classifier, ModelIntegrityError, Prediction, load_classifier
 from corpusaudit.config import Config
 from corpusaudit.discover import clear_scratch, discover
 from corpusaudit.extract import ExtractError, extract_document
@@ -90,10 +90,19 @@ def _png(pixels: np.ndarray, max_side: int) -> bytes:
     return encoded.tobytes()
 
 
-def _classify(figure: Figure, classifier: Classifier | None, config: Config, measurements: Measurements) -> None:
-    if classifier is None or figure.pixels is None:
-        return  # no model shipped: the label stays empty rather than guessed
-    prediction = classifier.predict(figure.pixels)
+def _predictions(figures: list[Figure], classifier: Classifier | None) -> list[Prediction | None]:
+    """The model's label for each figure with pixels, predicted for the document at once;
+    None without a model (the label stays empty rather than guessed) or pixels."""
+    with_pixels = [figure for figure in figures if figure.pixels is not None]
+    if classifier is None or not with_pixels:
+        return [None] * len(figures)
+    predicted = iter(classifier.predict_many([figure.pixels for figure in with_pixels]))
+    return [next(predicted) if figure.pixels is not None else None for figure in figures]
+
+
+def _classify(figure: Figure, prediction: Prediction | None, config: Config, measurements: Measurements) -> None:
+    if prediction is None:
+        return
     figure.chart_type, figure.confidence = prediction.label, prediction.confidence
     figure.low_confidence = prediction.confidence < config.classify.low_confidence
     figure.classified_by = "model"
@@ -147,9 +156,9 @@ def _process(doc: Document, config: Config, strict: bool, pages: tuple[int, int]
         doc.error = "; ".join(extracted.errors)
     classifier = _classifier()
     result = DocumentResult(doc, [], [], decorations=extracted.decorations)
-    for figure in extracted.figures:
+    for figure, prediction in zip(extracted.figures, _predictions(extracted.figures, classifier)):
         measurements = Measurements(figure)
-        _classify(figure, classifier, config, measurements)
+        _classify(figure, prediction, config, measurements)
         results, figure.unmeasured = check_figure(figure, config, measurements, strict=strict)
         if figure.pixels is not None:
             result.files[f"assets/{figure.figure_id}.png"] = _png(figure.pixels, THUMBNAIL_PX)

@@ -187,8 +187,11 @@ def _run(context, function, queue, jobs, time_limit, memory_limit, on_peak, recy
                     outcome, replace = Failure("timeout", f"time limit of {time_limit:g} s exceeded"), True
                     worker.kill()
                 else:
-                    worker.peak_rss = max(worker.peak_rss, resident_bytes(worker.process.pid))
-                    if memory_limit and private_bytes(worker.process.pid) > memory_limit:
+                    resident = resident_bytes(worker.process.pid)
+                    worker.peak_rss = max(worker.peak_rss, resident)
+                    # Private pages are a subset of resident ones; smaps_rollup walks the worker's
+                    # page tables (about 15 ms, stalling its memory maps), so read it only when needed.
+                    if memory_limit and resident > memory_limit and private_bytes(worker.process.pid) > memory_limit:
                         outcome = Failure("error", f"memory ceiling of {memory_limit // 2**20} MiB exceeded")
                         replace = True
                         worker.kill()

@@ -135,11 +135,8 @@ def test_vector_wedges_decide_pie_whatever_the_pixels_suggest():
     plot.savefig(buffer, format="pdf")
     figure = figure_from_chart_pdf(buffer.getvalue(), "pie-1")
 
-    class WrongModel:
-        def predict(self, rgb):
-            return Prediction("scatter", 0.4, (("scatter", 0.4), ("pie", 0.3), ("map", 0.1)))
-
-    _classify(figure, WrongModel(), build_config({}), Measurements(figure))
+    wrong = Prediction("scatter", 0.4, (("scatter", 0.4), ("pie", 0.3), ("map", 0.1)))
+    _classify(figure, wrong, build_config({}), Measurements(figure))
     assert (figure.chart_type, figure.classified_by, figure.low_confidence) == ("pie", "vector", False)
 
     bars = PlotFigure(figsize=(4, 3))
@@ -147,5 +144,5 @@ def test_vector_wedges_decide_pie_whatever_the_pixels_suggest():
     buffer = io.BytesIO()
     bars.savefig(buffer, format="pdf")
     figure = figure_from_chart_pdf(buffer.getvalue(), "bar-1")
-    _classify(figure, WrongModel(), build_config({}), Measurements(figure))
+    _classify(figure, wrong, build_config({}), Measurements(figure))
     assert (figure.chart_type, figure.classified_by) == ("scatter", "model")

@@ -87,6 +87,16 @@ def test_prediction_is_a_probability_distribution(classifier):
     assert [p for _, p in pred.top3] == sorted(proba, reverse=True)[:3]
 
 
+def test_a_document_predicted_at_once_matches_one_by_one(classifier):
+    images = [_fixture(name) for name in ("pie_0.png", "bar_1.png", "line_2.png")]
+    together = classifier.predict_many(images)
+    for image, prediction in zip(images, together):
+        alone = classifier.predict(image)
+        assert prediction.label == alone.label
+        assert prediction.confidence == pytest.approx(alone.confidence, abs=1e-12)
+    assert classifier.predict_many([]) == []
+
+
 def test_low_confidence_keeps_label():
     pred = Prediction("bar", LOW_CONFIDENCE - 0.01, (("bar", LOW_CONFIDENCE - 0.01),))
     assert pred.low_confidence and pred.label == "bar"

@@ -3,6 +3,7 @@
 API used by the pipeline:
   load_classifier(path=None) -> Classifier | None   (None: no model file shipped yet)
   Classifier.predict(rgb: np.ndarray) -> Prediction
+  Classifier.predict_many(images: list[np.ndarray]) -> list[Prediction]  (one document's figures)
 A prediction whose confidence is below LOW_CONFIDENCE keeps its best label; callers mark the
 figure low-confidence (Figure.low_confidence).
 """
@@ -61,15 +62,25 @@ class Classifier:
         with _single_thread():
             return self.estimator.predict_proba(np.atleast_2d(feature_rows))
 
-    def predict_features(self, feature_row: np.ndarray) -> Prediction:
-        proba = self.probabilities(feature_row)[0]
+    def _prediction(self, proba: np.ndarray) -> Prediction:
         order = np.argsort(proba)[::-1][:3]
         top3 = tuple((self.classes[i], float(proba[i])) for i in order)
         return Prediction(label=top3[0][0], confidence=top3[0][1], top3=top3)
 
+    def predict_features(self, feature_row: np.ndarray) -> Prediction:
+        return self._prediction(self.probabilities(feature_row)[0])
+
     def predict(self, rgb: np.ndarray) -> Prediction:
         """Chart type of an HxWx3 uint8 RGB image (greyscale HxW accepted)."""
-        return self.predict_features(features.extract(rgb))
+        return self.predict_many([rgb])[0]
+
+    def predict_many(self, images: list[np.ndarray]) -> list[Prediction]:
+        """Chart types of several images in one call: the trees' per-call overhead (most of the
+        model's time on one figure) is paid once for a whole document."""
+        if not images:
+            return []
+        rows = np.stack([features.extract(rgb) for rgb in images])
+        return [self._prediction(proba) for proba in self.probabilities(rows)]
 
 
 def load_classifier(path: str | Path | None = None) -> Classifier | None:

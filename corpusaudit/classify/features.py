@@ -179,7 +179,9 @@ def _extract(rgb: np.ndarray) -> tuple[list[str], np.ndarray]:
 
     # colour
     bg = _background(img)
-    diff = np.abs(img.astype(np.int16) - bg.astype(np.int16)).max(2)
+    # |img - bg| per channel by OpenCV (the same integers as numpy's int16 copy, several times faster)
+    per_channel = cv2.absdiff(img, tuple(float(v) for v in bg.astype(np.int16)) + (0.0,))
+    diff = np.maximum(np.maximum(per_channel[..., 0], per_channel[..., 1]), per_channel[..., 2]).astype(np.int16)
     ink = diff > 40
     ink_share = ink.mean()
     hsv = cv2.cvtColor(img, cv2.COLOR_RGB2HSV)

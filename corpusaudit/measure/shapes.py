@@ -89,8 +89,17 @@ def background_rgb(rgb: np.ndarray) -> np.ndarray:
     return border[keys == modal].mean(axis=0)
 
 
+_CHANNEL_SUM = np.ones((1, 3), np.float32)
+
+
 def colour_distance(rgb: np.ndarray, colour: np.ndarray) -> np.ndarray:
-    """Euclidean distance in 0..255 sRGB of every pixel from one colour."""
+    """Euclidean distance in 0..255 sRGB of every pixel from one colour (float32)."""
+    if rgb.ndim == 3 and rgb.shape[2] == 3 and rgb.dtype == np.uint8 and rgb.strides[2] == 1 and rgb.size:
+        # OpenCV converts while it subtracts: about four times faster than numpy's
+        # float copy, squares and sum, with the same float32 result.
+        r, g, b = (float(v) for v in np.asarray(colour, np.float64).reshape(3))
+        difference = cv2.subtract(rgb, (r, g, b, 0.0), dtype=cv2.CV_32F)
+        return cv2.sqrt(cv2.transform(cv2.multiply(difference, difference), _CHANNEL_SUM)).reshape(rgb.shape[:2])
     return np.sqrt(((rgb.astype(np.float32) - np.asarray(colour, np.float32)) ** 2).sum(axis=-1))
 
 
