@@ -26,7 +26,7 @@ from corpusaudit.extract import ExtractError, extract_document
 from corpusaudit.measure import Measurements
 from corpusaudit.model import SEVERITY_RANK, Document, Figure, Finding, MeasurementUnavailable
 from corpusaudit.progress import Progress
-from corpusaudit.report.annotate import annotate_pdf, annotated_path, render_page_thumbnails
+from corpusaudit.report.annotate import PAGE_THUMBNAIL_PX, annotate_pdf, annotated_path, page_thumbnail_files
 from corpusaudit.report.html import write_report
 from corpusaudit.report.tables import write_json, write_tables
 from corpusaudit.rows import document_row, figure_row, finding_row
@@ -150,7 +150,7 @@ def process_task(task: tuple[Document, Config, bool, tuple[int, int] | None]) ->
 
 def _process(doc: Document, config: Config, strict: bool, pages: tuple[int, int] | None) -> DocumentResult:
     """Pure: figure images come back as PNG bytes for the caller to write."""
-    extracted = extract_document(doc, config.extract, pages)
+    extracted = extract_document(doc, config.extract, pages, page_view_px=PAGE_THUMBNAIL_PX)
     doc.pages = extracted.pages
     if extracted.errors:
         doc.error = "; ".join(extracted.errors)
@@ -172,9 +172,8 @@ def _process(doc: Document, config: Config, strict: bool, pages: tuple[int, int]
                 threshold=checked.draft.threshold, region=checked.draft.region)))
         result.figures.append(figure_row(figure))
     if doc.kind == "pdf" and result.figures:
-        result.files.update(render_page_thumbnails(doc.local_path, doc.document_id,
-                                                   pages={row["page"] for row in result.figures},
-                                                   passwords=config.extract.passwords))
+        thumbnails = {number: _png(view, PAGE_THUMBNAIL_PX) for number, view in extracted.page_views.items()}
+        result.files.update(page_thumbnail_files(doc.document_id, thumbnails, extracted.page_sizes))
     doc.figures, doc.findings = len(result.figures), len(result.findings)
     return result
 

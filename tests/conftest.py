@@ -59,11 +59,21 @@ def run_rule(figure, rule: str, data: dict | None = None):
 
 
 def write_page_thumbnails(source, out_dir: Path, document_id: str, pages=None) -> list[Path]:
-    """What run.py does with render_page_thumbnails: write its files under out_dir; the PNG paths."""
-    from corpusaudit.report.annotate import render_page_thumbnails
+    """What run.py does with a PDF's page views: write the document-view files under out_dir;
+    the PNG paths. pages: the pages that hold figures (default all)."""
+    import pymupdf
 
+    from corpusaudit.extract.pdf import render_page_view
+    from corpusaudit.report.annotate import PAGE_THUMBNAIL_PX, page_thumbnail_files
+    from corpusaudit.run import _png
+
+    with pymupdf.open(source) as pdf:
+        sizes = {i + 1: (round(p.rect.width, 2), round(p.rect.height, 2)) for i, p in enumerate(pdf)}
+        wanted = sorted(pages) if pages is not None else sorted(sizes)
+        thumbnails = {n: _png(render_page_view(pdf[n - 1].get_displaylist(), PAGE_THUMBNAIL_PX), PAGE_THUMBNAIL_PX)
+                      for n in wanted if n in sizes}
     written = []
-    for relative, data in render_page_thumbnails(source, document_id, pages).items():
+    for relative, data in page_thumbnail_files(document_id, thumbnails, sizes).items():
         path = out_dir / relative
         path.parent.mkdir(parents=True, exist_ok=True)
         path.write_bytes(data)

@@ -9,6 +9,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
+import numpy as np
+
 from corpusaudit.model import Document, Figure
 
 DEFAULT_CAPTION_PATTERN = r"^\s*(Figure|Fig\.?|Chart|Graph|Exhibit)\s*([A-Z]?\d+(?:[.\-]\d+)*[a-z]?)\s*[.:\-\u2013\u2014]?"
@@ -31,19 +33,22 @@ class ExtractResult:
     pages: int = 0
     errors: list[str] = field(default_factory=list)  # "page 3: reason"
     decorations: int = 0  # images skipped as logos, icons, backgrounds
+    page_sizes: dict[int, tuple[float, float]] = field(default_factory=dict)  # every PDF page as displayed, points
+    page_views: dict[int, np.ndarray] = field(default_factory=dict)  # small RGB renders of pages with figures
 
 
 class ExtractError(Exception):
     """The document cannot be read at all; the message is its one-line reason."""
 
 
-def extract_document(doc: Document, config: ExtractConfig,
-                     pages: tuple[int, int] | None = None) -> ExtractResult:
-    """Figures of a document; pages (first, last; 1-based, inclusive) limits a PDF to a range."""
+def extract_document(doc: Document, config: ExtractConfig, pages: tuple[int, int] | None = None,
+                     page_view_px: int = 0) -> ExtractResult:
+    """Figures of a document; pages (first, last; 1-based, inclusive) limits a PDF to a range.
+    page_view_px > 0: also a render of each PDF page with figures, longest side that many pixels."""
     if doc.kind == "pdf":
         from corpusaudit.extract.pdf import extract_pdf
 
-        return extract_pdf(doc, config, pages)
+        return extract_pdf(doc, config, pages, page_view_px)
     from corpusaudit.extract.images import extract_image_file
 
     return extract_image_file(doc, config)

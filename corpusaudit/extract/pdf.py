@@ -422,8 +422,17 @@ def _within(inner, outer) -> bool:
         and inner[3] <= outer[3] + 0.5
 
 
-def extract_pdf(doc: Document, config: ExtractConfig, pages: tuple[int, int] | None = None) -> ExtractResult:
-    """Figures of every page, or of pages first..last; repeated images are judged over the whole document."""
+def render_page_view(display: pymupdf.DisplayList, longest_px: int) -> np.ndarray:
+    """The whole displayed page, longest side longest_px, from the display list the figures used."""
+    zoom = longest_px / max(display.rect.width, display.rect.height)
+    pix = display.get_pixmap(matrix=pymupdf.Matrix(zoom, zoom), alpha=False, colorspace=pymupdf.csRGB)
+    return np.frombuffer(pix.samples, dtype=np.uint8).reshape(pix.height, pix.width, pix.n)[:, :, :3].copy()
+
+
+def extract_pdf(doc: Document, config: ExtractConfig, pages: tuple[int, int] | None = None,
+                page_view_px: int = 0) -> ExtractResult:
+    """Figures of every page, or of pages first..last; repeated images are judged over the whole document.
+    page_view_px > 0: a small render of every page with figures as well."""
     pdf = open_pdf(doc, config)
     result = ExtractResult(pages=pdf.page_count)
     first, last = pages or (1, pdf.page_count)
@@ -433,7 +442,9 @@ def extract_pdf(doc: Document, config: ExtractConfig, pages: tuple[int, int] | N
         infos: list[list[dict] | None] = []
         for number in range(1, pdf.page_count + 1):
             try:
-                infos.append(pdf[number - 1].get_image_info(xrefs=True))
+                page = pdf[number - 1]
+                result.page_sizes[number] = (round(page.rect.width, 2), round(page.rect.height, 2))
+                infos.append(page.get_image_info(xrefs=True))
             except Exception as exc:  # a malformed page must not stop the document
                 infos.append(None)
                 result.errors.append(f"page {number}: {_reason(exc)}")
@@ -453,6 +464,8 @@ def extract_pdf(doc: Document, config: ExtractConfig, pages: tuple[int, int] | N
             result.errors.extend(reading.errors)
             result.figures.extend(figures)
             result.decorations += decorations
+            if figures and page_view_px > 0:
+                result.page_views[number] = render_page_view(reading.display, page_view_px)
     finally:
         pdf.close()
     if failed == result.pages:  # not one page could be read: the document is unreadable

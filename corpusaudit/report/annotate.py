@@ -4,9 +4,9 @@ annotate_pdf writes a copy of a PDF with, on every figure that has findings, a r
 annotation around it and a note annotation listing the findings and their fixes. The
 original file is only read.
 
-render_page_thumbnails renders small page images for the dashboard's document view
-(assets/pages/<document_id>-p<N>.png) and records every page's size in points
-(assets/pages/<document_id>.json) so that figure boxes can be drawn on them.
+page_thumbnail_files names the dashboard's document-view files: small page images
+(assets/pages/<document_id>-p<N>.png, rendered during extraction) and every page's size in
+points (assets/pages/<document_id>.json) so that figure boxes can be drawn on them.
 """
 
 from __future__ import annotations
@@ -110,24 +110,16 @@ def annotate_pdf(source_pdf_path: str | os.PathLike, out_path: str | os.PathLike
     return annotated
 
 
-def render_page_thumbnails(source_pdf_path: str | os.PathLike, document_id: str,
-                           pages: Iterable[int] | None = None, max_side: int = PAGE_THUMBNAIL_PX,
-                           passwords: Iterable[str] = ()) -> dict[str, bytes]:
-    """Small PNGs of pages (1-based; default all) as displayed, for the document view.
+def page_thumbnail_files(document_id: str, thumbnails: dict[int, bytes],
+                         sizes: dict[int, tuple[float, float]]) -> dict[str, bytes]:
+    """The document view's files: {path relative to the output folder: bytes}.
 
-    Returns {path relative to the output folder: bytes}: assets/pages/<document_id>-p<N>.png
-    and assets/pages/<document_id>.json (every displayed page's width and height in
-    points, the frame of the figure boxes). Pure: the caller writes them.
+    assets/pages/<document_id>-p<N>.png for each page thumbnail (PNG bytes, pages 1-based) and
+    assets/pages/<document_id>.json: every displayed page's width and height in points, the frame
+    of the figure boxes. Pure: the caller writes them.
     """
-    files: dict[str, bytes] = {}
-    with open_unlocked(source_pdf_path, passwords) as pdf:
-        sizes = {str(i + 1): [round(p.rect.width, 2), round(p.rect.height, 2)] for i, p in enumerate(pdf)}
-        wanted = sorted({p for p in (pages if pages is not None else range(1, pdf.page_count + 1))
-                         if 1 <= p <= pdf.page_count})
-        for number in wanted:
-            page = pdf[number - 1]
-            zoom = max_side / max(page.rect.width, page.rect.height)
-            pixmap = page.get_pixmap(matrix=pymupdf.Matrix(zoom, zoom), alpha=False)
-            files[page_thumbnail_path(Path(), document_id, number).as_posix()] = pixmap.tobytes("png")
-    files[page_sizes_path(Path(), document_id).as_posix()] = json.dumps(sizes, sort_keys=True).encode()
+    files = {page_thumbnail_path(Path(), document_id, number).as_posix(): data
+             for number, data in sorted(thumbnails.items())}
+    payload = {str(number): [width, height] for number, (width, height) in sizes.items()}
+    files[page_sizes_path(Path(), document_id).as_posix()] = json.dumps(payload, sort_keys=True).encode()
     return files
