@@ -66,12 +66,49 @@ def floor_seconds(folder: Path, out: Path, dpi: int) -> tuple[float, int]:
         for page in doc:
             pages += 1
             page.get_image_info(xrefs=True)
-            page.get_drawings()
+            page.get_cdrawings()
             page.get_text("dict")
             for box in wanted.get(page.number + 1, ()):
                 page.get_pixmap(dpi=dpi, clip=pymupdf.Rect(box))
         doc.close()
     return time.perf_counter() - started, pages
+
+
+def stage_split(folder: Path) -> dict[str, float]:
+    """CPU seconds per pipeline stage over the corpus, run in this process (no pool)."""
+    import corpusaudit.run as run_module
+    from corpusaudit.discover import discover
+    from corpusaudit.workers import single_threaded_libraries
+
+    spent: dict[str, float] = defaultdict(float)
+
+    def timed(stage: str, function):
+        def wrapper(*args, **kwargs):
+            started = time.process_time()
+            try:
+                return function(*args, **kwargs)
+            finally:
+                spent[stage] += time.process_time() - started
+        return wrapper
+
+    originals = {name: getattr(run_module, name) for name in ("extract_document", "_predictions", "check_figure", "_png")}
+    stages = {"extract_document": "extract (PyMuPDF reading, regions, renders)", "_predictions": "classify",
+              "check_figure": "measure and check", "_png": "encode PNGs"}
+    config = load_config(None)
+    documents = discover([str(folder)], WORK / "scratch", exclude=WORK / "none")
+    run_module._classifier()
+    try:
+        for name, stage in stages.items():
+            setattr(run_module, name, timed(stage, originals[name]))
+        with single_threaded_libraries():
+            started = time.process_time()
+            for doc in documents:
+                run_module.process_document(doc, config)
+            spent["total"] = time.process_time() - started
+    finally:
+        for name, function in originals.items():
+            setattr(run_module, name, function)
+    return {stage: seconds / len(documents) for stage, seconds in spent.items()}
 
 
 def main() -> None:
@@ -96,6 +133,10 @@ def main() -> None:
     two, _, _ = run_audit(folder, 2, "j2")
     print(f"speed-up of --jobs 2 over --jobs 1 at {args.speedup_size} documents: {one / two:.2f} "
           f"({one:.1f} s -> {two:.1f} s)")
+    split = stage_split(corpus_of(min(sizes)))
+    print(f"CPU time per document by stage ({min(sizes)} documents, one process):")
+    for stage, seconds in sorted(split.items(), key=lambda kv: -kv[1]):
+        print(f"  {1000 * seconds:8.1f} ms  {stage}")
 
 
 if __name__ == "__main__":

@@ -22,7 +22,7 @@ from corpusaudit.extract.raster import (FULL_PAGE_SHARE, PieceGroup, group_piece
 from corpusaudit.extract.regions import (SCATTER_MERGE_PT, Region, attach_labels, attach_titles, group_ink, label_like,
                                          merge_overlapping, union, vector_verdict)
 from corpusaudit.extract.scan import figure_boxes
-from corpusaudit.extract.vector_evidence import read_text, vector_evidence
+from corpusaudit.extract.vector_evidence import read_drawings, read_text, vector_evidence
 from corpusaudit.model import Document, Figure
 
 pymupdf.TOOLS.mupdf_display_errors(False)
@@ -153,7 +153,7 @@ def visible_drawings(page: pymupdf.Page) -> list[dict]:
     page_area = abs(page.cropbox.width * page.cropbox.height)
     clips: list[tuple[int, pymupdf.Rect | None, int | None]] = []  # (level, visible area or None, graphic)
     painted = []
-    for number, entry in enumerate(page.get_drawings(extended=True)):
+    for number, entry in enumerate(read_drawings(page, extended=True)):
         level = entry.get("level", 0)
         while clips and clips[-1][0] >= level:
             clips.pop()

@@ -79,7 +79,7 @@ def _rectilinear(drawing: dict) -> bool:
             continue
         if op == "l":
             p, q = item[1], item[2]
-            if abs(p.x - q.x) > 0.5 and abs(p.y - q.y) > 0.5:
+            if abs(p[0] - q[0]) > 0.5 and abs(p[1] - q[1]) > 0.5:
                 return False
             continue
         return False  # curves
@@ -108,7 +108,7 @@ def _paint(mask: np.ndarray, drawing: dict, page_area: float) -> None:
                 [item[1].ul, item[1].ur, item[1].lr, item[1].ll, item[1].ul] if item[0] == "qu" else \
                 [item[1], item[4]]
             # drawn into the rect's window: a clipped outline paints nothing beyond its clip
-            polyline = np.array([[p.x * s - x0, p.y * s - y0] for p in points], dtype=np.int32)
+            polyline = np.array([[p[0] * s - x0, p[1] * s - y0] for p in points], dtype=np.int32)
             cv2.polylines(mask[y0:y1 + 1, x0:x1 + 1], [polyline], False, 1, 1)
         return
     mask[y0:y1 + 1, x0:x1 + 1] = 1
@@ -118,9 +118,9 @@ def _anchor(drawing: dict) -> tuple[int, int]:
     """A pixel the path certainly painted (its first point when not clipped away, else its box corner)."""
     rect = drawing["rect"]
     first = drawing["items"][0] if drawing["items"] else None
-    if first is not None and first[0] in ("l", "c") and rect.x0 <= first[1].x <= rect.x1 \
-            and rect.y0 <= first[1].y <= rect.y1:
-        return int(first[1].x * MASK_PX_PER_PT), int(first[1].y * MASK_PX_PER_PT)
+    if first is not None and first[0] in ("l", "c") and rect.x0 <= first[1][0] <= rect.x1 \
+            and rect.y0 <= first[1][1] <= rect.y1:
+        return int(first[1][0] * MASK_PX_PER_PT), int(first[1][1] * MASK_PX_PER_PT)
     return int(rect.x0 * MASK_PX_PER_PT), int(rect.y0 * MASK_PX_PER_PT)
 
 

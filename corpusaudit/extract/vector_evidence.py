@@ -54,12 +54,12 @@ def _all_path_points(drawings: list[dict], matrix: pymupdf.Matrix) -> list[list[
         for item in drawing["items"]:
             op = item[0]
             if op == "l":
-                raw += ((item[1].x, item[1].y), (item[2].x, item[2].y))
+                raw += ((item[1][0], item[1][1]), (item[2][0], item[2][1]))
             elif op == "c":
                 p0, p1, p2, p3 = item[1:5]
-                raw.append((p0.x, p0.y))
+                raw.append((p0[0], p0[1]))
                 slots.append(len(raw))
-                controls.append((p0.x, p0.y, p1.x, p1.y, p2.x, p2.y, p3.x, p3.y))
+                controls.append((p0[0], p0[1], p1[0], p1[1], p2[0], p2[1], p3[0], p3[1]))
                 raw += placeholder
             elif op == "re":
                 rect = item[1]
@@ -86,13 +86,39 @@ def _all_path_points(drawings: list[dict], matrix: pymupdf.Matrix) -> list[list[
     return [kept[bounds[i]:bounds[i + 1]] for i in range(len(drawings))]
 
 
+_PATH_KEYS = ("closePath", "fill", "color", "width", "lineCap", "lineJoin", "dashes", "stroke_opacity",
+              "fill_opacity", "even_odd")
+
+
+def read_drawings(page: pymupdf.Page, extended: bool = False) -> list[dict]:
+    """The page's paths as Page.get_drawings gives them, except that line and curve points stay
+    (x, y) tuples: a scatter plot's thousands of markers are hundreds of thousands of points, and
+    making each a Point object costs more than reading the page. Rects, quads, clip scissors and
+    path boxes are converted as get_drawings does; code reads points by index, so either works."""
+    drawings = page.get_cdrawings(extended=extended)
+    for drawing in drawings:
+        kind = drawing["type"]
+        if kind.startswith("clip"):
+            drawing["scissor"] = pymupdf.Rect(drawing["scissor"])
+        else:
+            drawing["rect"] = pymupdf.Rect(drawing["rect"])
+        if kind != "group":
+            drawing["items"] = [("re", pymupdf.Rect(item[1]).normalize(), item[2]) if item[0] == "re"
+                                else ("qu", pymupdf.Quad(item[1])) if item[0] == "qu" else item
+                                for item in drawing["items"]]
+        if kind in ("f", "s"):
+            for key in _PATH_KEYS:
+                drawing.setdefault(key, None)
+    return drawings
+
+
 def _is_rect(items) -> bool:
     if len(items) == 1 and items[0][0] == "re":
         return True
     if len(items) == 1 and items[0][0] == "qu":
         return bool(items[0][1].is_rectangular)
     if all(item[0] == "l" for item in items) and 3 <= len(items) <= 4:
-        corners = {(round(p.x, 2), round(p.y, 2)) for item in items for p in item[1:3]}
+        corners = {(round(p[0], 2), round(p[1], 2)) for item in items for p in item[1:3]}
         xs = {x for x, _ in corners}
         ys = {y for _, y in corners}
         return len(corners) == 4 and len(xs) == 2 and len(ys) == 2
@@ -208,7 +234,7 @@ def vector_evidence(page: pymupdf.Page, clip: pymupdf.Rect, scale: float,
     scale pixels per point. drawings and text may be passed when already read.
     """
     if drawings is None:
-        drawings = page.get_drawings()
+        drawings = read_drawings(page)
     # Compare coordinates: axis lines have zero-height rects, which Rect.intersects rejects.
     inside = [d for d in drawings if d["rect"].x0 <= clip.x1 and d["rect"].x1 >= clip.x0
               and d["rect"].y0 <= clip.y1 and d["rect"].y1 >= clip.y0]
