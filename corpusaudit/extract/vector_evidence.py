@@ -43,36 +43,38 @@ def _all_path_points(drawings: list[dict], matrix: pymupdf.Matrix) -> list[list[
     drawings of four curves each, too many for per-curve arithmetic in Python. An affine map
     commutes with Bezier evaluation, so control points are transformed first.
     """
-    raw: list[tuple[float, float]] = []  # vertices in page points; curve samples are slots
+    raw: list[float] = []  # x, y of each vertex in page points (flat: numpy reads floats faster than pairs)
     keep_repeat: list[int] = []  # indices of rectangle corners, kept even when repeated
-    controls: list[tuple[float, ...]] = []
+    controls: list[float] = []  # the four control points of each curve, flat
     slots: list[int] = []
     starts: list[int] = []
-    placeholder = [(0.0, 0.0)] * CURVE_SAMPLES
+    placeholder = [0.0] * (2 * CURVE_SAMPLES)
     for drawing in drawings:
-        starts.append(len(raw))
+        starts.append(len(raw) // 2)
         for item in drawing["items"]:
             op = item[0]
             if op == "l":
-                raw += ((item[1][0], item[1][1]), (item[2][0], item[2][1]))
+                raw += (item[1][0], item[1][1], item[2][0], item[2][1])
             elif op == "c":
                 p0, p1, p2, p3 = item[1:5]
-                raw.append((p0[0], p0[1]))
-                slots.append(len(raw))
-                controls.append((p0[0], p0[1], p1[0], p1[1], p2[0], p2[1], p3[0], p3[1]))
+                raw += (p0[0], p0[1])
+                slots.append(len(raw) // 2)
+                controls += (p0[0], p0[1], p1[0], p1[1], p2[0], p2[1], p3[0], p3[1])
                 raw += placeholder
             elif op == "re":
                 rect = item[1]
-                keep_repeat += range(len(raw), len(raw) + 4)
-                raw += ((rect.x0, rect.y0), (rect.x1, rect.y0), (rect.x1, rect.y1), (rect.x0, rect.y1))
+                first = len(raw) // 2
+                keep_repeat += range(first, first + 4)
+                raw += (rect.x0, rect.y0, rect.x1, rect.y0, rect.x1, rect.y1, rect.x0, rect.y1)
             elif op == "qu":
                 quad = item[1]
-                raw += ((q.x, q.y) for q in (quad.ul, quad.ur, quad.lr, quad.ll))
+                for corner in (quad.ul, quad.ur, quad.lr, quad.ll):
+                    raw += (corner.x, corner.y)
     if not raw:
         return [[] for _ in drawings]
     affine = np.array([[matrix.a, matrix.b], [matrix.c, matrix.d]])
     shift = np.array([matrix.e, matrix.f])
-    points = np.array(raw, dtype=np.float64) @ affine + shift
+    points = np.array(raw, dtype=np.float64).reshape(-1, 2) @ affine + shift
     if controls:
         control = np.array(controls, dtype=np.float64).reshape(-1, 4, 2) @ affine + shift
         samples = np.einsum("tk,nkd->ntd", _BEZIER_WEIGHTS, control)
