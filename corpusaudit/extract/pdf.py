@@ -350,6 +350,8 @@ def _page_figures(reading: _Page, infos: list[dict], repeated: set[tuple]) -> tu
         reading.errors.append(f"page {reading.number}: about {paths} drawing paths exceed max_paths_per_page "
                               f"({config.max_paths_per_page}); vector figures not searched")
         drawings = []
+    if not pictures and _too_small_for_a_figure(drawings, config.min_figure_pt):
+        return [], decorations  # a page of text, perhaps with rules: no region could be a figure
     regions = group_ink(reading.bounds, drawings, [g.rect for g in pictures])
     caption_blocks = {line.block for line in reading.lines
                       for c in reading.captions if line.bbox[1] >= c.bbox[1] - 0.5 and _within(line.bbox, c.bbox)}
@@ -415,6 +417,18 @@ def _page_figures(reading: _Page, infos: list[dict], repeated: set[tuple]) -> tu
             figures.append(_figure(reading, len(figures), shown, "vector", pixels, caption, vector=evidence,
                                    image_info={"paths": len(region.paths)}))
     return figures, decorations
+
+
+def _too_small_for_a_figure(drawings: list[dict], min_size: float) -> bool:
+    """True when all paths together span less than min_size one way: every region of them
+    would be judged small (vector_verdict), so grouping them can be skipped."""
+    if not drawings:
+        return True
+    x0 = min(d["rect"].x0 for d in drawings)
+    x1 = max(d["rect"].x1 for d in drawings)
+    y0 = min(d["rect"].y0 for d in drawings)
+    y1 = max(d["rect"].y1 for d in drawings)
+    return min(x1 - x0, y1 - y0) < min_size
 
 
 def _within(inner, outer) -> bool:
