@@ -77,6 +77,70 @@ def test_raster_percentages_are_read_and_summed():
     assert measurements.get("pie_label_total").total == pytest.approx(110)
 
 
+@needs_ocr
+def test_labels_run_together_are_split_into_their_percentages():
+    # the labels of two slices drawn edge to edge read as one line, '20.0%40.0%'; matplotlib
+    # draws the given text, so the labels are 50, 20 and 40 and add up to 110
+    def draw(fig):
+        ax = fig.add_subplot()
+        ax.pie([0.5, 0.3, 0.2], startangle=90, counterclock=False, colors=["#f0c080", "#a0d0f0", "#c0e0a0"])
+        ax.text(0.0, 0.5, "50.0%", ha="center", fontsize=9)
+        ax.text(-0.2, -0.45, "20.0%", ha="right", fontsize=9)
+        ax.text(-0.2, -0.45, "40.0%", ha="left", fontsize=9)
+    _, measurements = _measure(draw, "pie", "raster")
+    assert sorted(p.value for p in measurements.get("pie_percentages")) == [20, 40, 50]
+    total = measurements.get("pie_label_total")
+    assert total.total == pytest.approx(110) and total.estimated == 0
+
+
+@needs_ocr
+def test_dark_slices_do_not_fill_the_glyphs_of_their_labels():
+    # dark text on a saturated red slice: read against the slice's own luma, '8.9%' stays
+    # '8.9%' (read against white, the red around the glyphs closes the 8 and the 9)
+    shares = [0.5, 0.3, 0.2]
+    labels = ["50.0%", "30.0%", "8.9%"]
+    _, measurements = _measure(_pie(shares, colours=["C0", "C1", "C3"], labels=labels), "pie", "raster")
+    assert 8.9 in [p.value for p in measurements.get("pie_percentages")]
+
+
+@pytest.mark.parametrize("source", ["vector", "raster"])
+def test_a_pie_with_one_wedge_pulled_out(source):
+    # matplotlib's explode= moves a wedge along its middle direction; the shares are unchanged
+    shares = [0.4, 0.25, 0.15, 0.12, 0.08]
+    def draw(fig):
+        ax = fig.add_subplot()
+        ax.pie(shares, startangle=90, counterclock=False, explode=[0, 0.15, 0, 0, 0])
+    _, measurements = _measure(draw, "pie", source)
+    pie = measurements.get("pie")
+    assert len(pie.slices) == 5
+    assert sorted(pie.shares) == pytest.approx(sorted(shares), abs=0.005)
+
+
+def test_a_vector_pie_with_every_wedge_pulled_out():
+    # every wedge moved by 5 % of the radius: each wedge's apex lies on its middle direction
+    # from the centre the wedges would share unexploded
+    shares = [0.4, 0.25, 0.15, 0.12, 0.08]
+    def draw(explode):
+        def drawing(fig):
+            fig.add_subplot().pie(shares, startangle=90, counterclock=False, explode=explode)
+        return drawing
+    exploded = _measure(draw([0.05] * 5), "pie", "vector")[1].get("pie")
+    whole = _measure(draw(None), "pie", "vector")[1].get("pie")
+    assert sorted(exploded.shares) == pytest.approx(sorted(shares), abs=1e-3)
+    assert exploded.centre == pytest.approx(whole.centre, abs=0.5)
+    assert exploded.radius == pytest.approx(whole.radius, rel=0.005)
+
+
+def test_a_raster_pie_with_every_wedge_pulled_out():
+    # each wedge is its own piece; pushed back apex to apex they make the whole pie again
+    shares = [0.4, 0.25, 0.15, 0.12, 0.08]
+    def draw(fig):
+        fig.add_subplot().pie(shares, startangle=90, counterclock=False, explode=[0.05] * 5)
+    pie = _measure(draw, "pie", "raster")[1].get("pie")
+    assert len(pie.slices) == 5
+    assert sorted(pie.shares) == pytest.approx(sorted(shares), abs=0.01)
+
+
 @pytest.mark.parametrize("second_label, flagged", [("40%", True), ("30%", False)])
 def test_unlabelled_slices_count_by_their_drawn_share(second_label, flagged):
     # two of three slices labelled: the third (20 %) counts by its angle, so 50 + 40 + 20 = 110

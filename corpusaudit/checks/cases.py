@@ -95,6 +95,16 @@ def pie_case(rng: np.random.Generator, index: int) -> Case:
         printed[0] += offset
     donut = bool(rng.random() < 0.25)
     edge = bool(rng.random() < 0.5)
+    # A quarter of the full pies are exploded: one slice pulled out, or every slice a little.
+    # Drawn from a child generator, so the cases that follow are the same with or without it.
+    apart = rng.spawn(1)[0]
+    explode = None
+    if not donut and apart.random() < 0.25:
+        explode = [0.0] * n
+        if apart.random() < 0.5:
+            explode[int(apart.integers(0, n))] = float(apart.uniform(0.08, 0.2))
+        else:
+            explode = [float(apart.uniform(0.03, 0.08))] * n
 
     def draw(fig):
         ax = fig.add_subplot()
@@ -105,17 +115,18 @@ def pie_case(rng: np.random.Generator, index: int) -> Case:
         if label_mode != "none":
             texts = [f"{p:.1f}%" for p in printed]
         wedges, *_ = ax.pie(shares, labels=labels if rng.random() < 0.5 else None, startangle=90, counterclock=False,
-                            wedgeprops=wedgeprops)
+                            wedgeprops=wedgeprops, explode=explode)
         if texts:
             for wedge, text in zip(wedges, texts):
                 angle = np.radians((wedge.theta1 + wedge.theta2) / 2)
                 radius = 0.78 if donut else 0.62
-                ax.text(radius * np.cos(angle), radius * np.sin(angle), text, ha="center", va="center", fontsize=8)
+                x, y = wedge.center  # an exploded wedge's apex
+                ax.text(x + radius * np.cos(angle), y + radius * np.sin(angle), text, ha="center", va="center", fontsize=8)
 
     truth = {"pie-slice-count": n > 5, "pie-similar-slices": similar, "pie-order": shuffled, "chart-3d": False}
     if label_mode != "none":
         truth["pie-total"] = label_mode == "false"
-    return Case(f"pie-{index}", "pie", draw, truth, {"slices": n, "shares": shares})
+    return Case(f"pie-{index}", "pie", draw, truth, {"slices": n, "shares": shares, "exploded": explode is not None})
 
 
 def pie3d_case(rng: np.random.Generator, index: int) -> Case:

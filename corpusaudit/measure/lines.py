@@ -99,36 +99,123 @@ def _colour_classes(inner: np.ndarray) -> tuple[np.ndarray, list[np.ndarray]]:
     distances = np.stack([colour_distance(inner, panel)] + [colour_distance(inner, c) for c in palette])
     nearest = distances.argmin(axis=0) - 1  # -1: the panel
     nearest[distances.min(axis=0) > 25] = -1  # intermediate (anti-aliased) pixels belong to no colour
+    _fringes_to_their_lines(inner, nearest, palette, panel)
     return nearest, palette
+
+
+FRINGE_REACH = 2  # pixels: anti-aliasing spreads a stroke by about one pixel each side, JPEG and resampling by one more
+
+
+def _fringes_to_their_lines(inner: np.ndarray, classes: np.ndarray, palette: list[np.ndarray], panel: np.ndarray) -> None:
+    """Give the anti-aliased fringe pixels of a line to that line, in place.
+
+    A fringe pixel is a blend of its line's colour and the panel, so near the panel all
+    lines' fringes look alike and often sit nearest some lighter palette colour (the
+    fringe of another line, or a light series). A pixel labelled with a lighter colour
+    that lies on the blend of a darker colour with the panel, within FRINGE_REACH of that
+    colour's pixels, is that colour's fringe. Darker colours go first, so a fringe of a
+    fringe follows its pixels to the line; a light series keeps all but the pixels where
+    it crosses a darker line.
+    """
+    order = np.argsort([-float(np.linalg.norm(c - panel)) for c in palette])
+    padded = np.pad(classes, FRINGE_REACH, constant_values=-1)
+    offsets = [(dy, dx) for dy in range(2 * FRINGE_REACH + 1) for dx in range(2 * FRINGE_REACH + 1)]
+    labelled = np.flatnonzero(classes >= 0)
+    labels = classes.ravel()[labelled]
+    for rank, k in enumerate(order[1:], start=1):
+        # pixels of k change only when k's turn comes (they move to darker colours)
+        ys, xs = np.divmod(labelled[labels == k], classes.shape[1])
+        if len(ys) == 0:
+            continue
+        neighbours = np.stack([padded[ys + dy, xs + dx] for dy, dx in offsets])  # labels within FRINGE_REACH
+        colours = inner[ys, xs].astype(np.float32)
+        best = np.full(len(ys), np.inf)
+        owner = np.full(len(ys), -1)
+        for j in set(order[:rank].tolist()) & set(np.unique(neighbours).tolist()):
+            residual = _blend_residual(colours, palette[j], panel)
+            better = (neighbours == j).any(axis=0) & (residual < best)
+            best[better], owner[better] = residual[better], j
+        moved = owner >= 0
+        classes[ys[moved], xs[moved]] = owner[moved]
+        padded[ys[moved] + FRINGE_REACH, xs[moved] + FRINGE_REACH] = owner[moved]
+
+
+def _blend_residual(colours: np.ndarray, source: np.ndarray, panel: np.ndarray, tolerance: float = 18.0) -> np.ndarray:
+    """Per colour (n, 3): distance from the sRGB segment between source and the panel (as
+    _between, for many colours at once); inf where the colour is not such a blend."""
+    direction = (panel - source).astype(np.float32)
+    length2 = float(direction @ direction)
+    if length2 < 1:
+        return np.full(len(colours), np.inf)
+    offset = colours - source.astype(np.float32)
+    t = offset @ direction / length2
+    residual = np.linalg.norm(offset - t[:, None] * direction, axis=1)
+    return np.where((t >= 0.05) & (t <= 0.97) & (residual <= tolerance), residual, np.inf)
+
+
+GRID_SHARE = 0.3  # a grid line fills at least this share of the plot's width (or height)
+FRAME_SHARE = 0.9  # a row (column) this full is a frame or axis line, not a data line
 
 
 def _grid_free(inner: np.ndarray, panel: np.ndarray) -> np.ndarray:
     """False on the rows and columns that ink fills along much of the plot (grid and
-    reference lines, dashed or not, whatever their shade), True elsewhere."""
+    reference lines, dashed or not, whatever their shade), True elsewhere.
+
+    A grid line is thin: the rows three pixels above and below it hold at most half its ink. A
+    nearly level data line fills its neighbouring rows as much and stays; rows filled
+    from end to end (frames, bands of axis lines) go whatever their neighbours.
+    """
     ink = colour_distance(inner, panel) > 15
     keep = np.ones(ink.shape, bool)
     height, width = ink.shape
-    for index in np.flatnonzero(ink.sum(axis=1) >= 0.3 * width):
-        keep[max(0, index - 1):index + 2, :] = False
-    for index in np.flatnonzero(ink.sum(axis=0) >= 0.3 * height):
-        keep[:, max(0, index - 1):index + 2] = False
+    for axis, length in ((1, width), (0, height)):
+        counts = ink.sum(axis=axis).astype(float)
+        padded = np.pad(counts, 3)
+        beside = np.maximum(padded[:-6], padded[6:])
+        thin = (counts >= GRID_SHARE * length) & (counts >= 2 * beside)
+        for index in np.flatnonzero(thin | (counts >= FRAME_SHARE * length)):
+            if axis == 1:
+                keep[max(0, index - 1):index + 2, :] = False
+            else:
+                keep[:, max(0, index - 1):index + 2] = False
     return keep
 
 
-def _markers_of(mask: np.ndarray, stroke_width: float) -> list[tuple[float, float]]:
-    """Centres of the round blobs on a stroke (markers), when at least three of like size."""
-    size = max(3, int(round(2.5 * stroke_width)) | 1)
-    blobs = cv2.morphologyEx(mask, cv2.MORPH_OPEN, cv2.getStructuringElement(cv2.MORPH_ELLIPSE, (size, size)))
-    count, _, stats, centroids = cv2.connectedComponentsWithStats(blobs, connectivity=8)
+MARKER_WIDTHS = 1.25  # radius, in stroke widths, of the disk a marker holds and a line does not
+
+
+def _markers_of(mask: np.ndarray) -> tuple[list[tuple[float, float]], float]:
+    """Centres of the round blobs on a stroke (markers), when at least three of like size,
+    and the stroke's width.
+
+    The width is twice the median distance-to-edge along the stroke's ridge (markers are
+    a small share of it). A marker holds a disk 2.5 stroke widths across, which a line
+    does not, even where it bends or crosses itself. Holes up to a few stroke widths
+    across are filled first: hollow markers, and the pixels JPEG noise moves away from a
+    saturated colour inside filled ones.
+    """
+    closed = cv2.morphologyEx(mask, cv2.MORPH_CLOSE, np.ones((3, 3), np.uint8))
+    inside = cv2.distanceTransform(closed, cv2.DIST_L2, 3)
+    ridge = (inside > 0) & (inside >= cv2.dilate(inside, np.ones((3, 3), np.uint8)))
+    if not ridge.any():
+        return [], 0.0
+    half_width = float(np.median(inside[ridge]))
+    count, labels, stats, _ = cv2.connectedComponentsWithStats(1 - closed, connectivity=4)
+    small = np.flatnonzero(stats[:, cv2.CC_STAT_AREA] <= (8 * half_width) ** 2)
+    if len(small):
+        closed = closed | np.isin(labels, small).astype(np.uint8)
+        inside = cv2.distanceTransform(closed, cv2.DIST_L2, 3)
+    cores = (inside >= max(2.0, MARKER_WIDTHS * 2 * half_width)).astype(np.uint8)
+    count, labels, stats, centroids = cv2.connectedComponentsWithStats(cores, connectivity=8)
     if count <= 3:
-        return []
-    areas = stats[1:, cv2.CC_STAT_AREA].astype(float)
+        return [], 2 * half_width
+    radii = np.array([inside[labels == k].max() for k in range(1, count)])
     w, h = stats[1:, cv2.CC_STAT_WIDTH].astype(float), stats[1:, cv2.CC_STAT_HEIGHT].astype(float)
-    typical = np.median(areas)
-    round_blobs = (np.abs(w - h) <= 0.35 * np.maximum(w, h)) & (areas >= 0.5 * typical) & (areas <= 2.0 * typical)
+    typical = np.median(radii)
+    round_blobs = (np.abs(w - h) <= np.maximum(1.0, 0.35 * np.maximum(w, h))) & (radii >= 0.7 * typical) & (radii <= 1.4 * typical)
     if round_blobs.sum() < 3:
-        return []
-    return sorted((float(x), float(y)) for x, y in centroids[1:][round_blobs])
+        return [], 2 * half_width
+    return sorted((float(x), float(y)) for x, y in centroids[1:][round_blobs]), 2 * half_width
 
 
 def _raster_series(rgb: np.ndarray, plot: BBox) -> list[Series]:
@@ -150,12 +237,14 @@ def _raster_series(rgb: np.ndarray, plot: BBox) -> list[Series]:
     strokes = []
     for index, colour in enumerate(palette):
         mask = (classes == index).astype(np.uint8)
-        if not mask.any():
+        pixel_count = int(mask.sum())
+        if not pixel_count:
             continue
-        thick = cv2.morphologyEx(mask, cv2.MORPH_OPEN, np.ones((9, 9), np.uint8))
-        _, _, stats, _ = cv2.connectedComponentsWithStats(thick, connectivity=8)
-        if len(stats) > 1 and stats[1:, cv2.CC_STAT_AREA].max() > FILL_SHARE * width * height:
-            continue  # a filled region (area, bar), not a stroke
+        if pixel_count > FILL_SHARE * width * height:  # fewer pixels cannot hold a fill
+            thick = cv2.morphologyEx(mask, cv2.MORPH_OPEN, np.ones((9, 9), np.uint8))
+            _, _, stats, _ = cv2.connectedComponentsWithStats(thick, connectivity=8)
+            if len(stats) > 1 and stats[1:, cv2.CC_STAT_AREA].max() > FILL_SHARE * width * height:
+                continue  # a filled region (area, bar), not a stroke
         strokes.append((colour, mask))
     groups = _co_located(strokes, background_rgb(inner))
     series = []
@@ -165,9 +254,7 @@ def _raster_series(rgb: np.ndarray, plot: BBox) -> list[Series]:
         if len(columns) < MIN_SPAN_SHARE * width:
             continue
         colour = max((strokes[k] for k in members), key=lambda item: int(item[1].sum()))[0]
-        column_heights = mask.sum(axis=0)[columns]
-        stroke_width = float(np.percentile(column_heights, 25))
-        markers = _markers_of(mask, stroke_width)
+        markers, _ = _markers_of(mask)
         covered = np.zeros(width, bool)
         covered[columns] = True
         spread = covered[columns.min():columns.max() + 1]
@@ -181,39 +268,57 @@ def _raster_series(rgb: np.ndarray, plot: BBox) -> list[Series]:
     return series
 
 
+FRINGE_CONTRAST = 20.0  # sRGB distance: a fringe is clearly lighter than its line
+JPEG_COLOUR_SHIFT = 50.0  # sRGB distance within which a thin line's colour is the same after JPEG (chroma subsampling shifts it)
+
+
 def _co_located(strokes: list[tuple[np.ndarray, np.ndarray]], panel: np.ndarray) -> list[list[int]]:
     """Groups of strokes that are one line.
 
-    A stroke whose colour lies between other strokes' colours and the panel, and whose
-    pixels run along those strokes, is their anti-aliased fringe and is left out. A
-    stroke lying mostly within two pixels of a longer one, which lies along it too or
-    which it follows for only a stretch, is a variant of that line's colour (JPEG shifts
-    thin lines' colours). Lines that merely cross share few pixels.
+    A stroke whose colour lies between darker strokes' colours and the panel, and whose
+    pixels run along those strokes, is their anti-aliased fringe and is left out (JPEG
+    moves fringe colours off the exact blend: the blend is judged within JPEG's shift). A stroke lying mostly
+    within two pixels of a longer one, which lies along it too or which it follows for
+    only a stretch, or whose colour is the longer one's shifted as JPEG shifts thin lines'
+    colours, is a variant of that line's colour. So is a stroke of such a colour, or of a
+    blend of it with the panel, that continues the longer one where it is missing (JPEG
+    and resampling give the segments of one thin line different colours, and where a line
+    is thinner than a pixel all its pixels are blends). Lines that merely cross share few pixels.
     """
     near = [cv2.dilate(mask, np.ones((5, 5), np.uint8)) for _, mask in strokes]
     pixels = [mask.astype(bool) for _, mask in strokes]
+    columns = [p.any(axis=0) for p in pixels]
+    depth = [float(np.linalg.norm(colour - panel)) for colour, _ in strokes]
     fringes = set()
-    for k, (colour, _) in enumerate(strokes):
-        sources = [j for j, (other, _) in enumerate(strokes) if j != k and _between(colour, other, panel)]
-        if sources and float(np.any([near[j] for j in sources], axis=0)[pixels[k]].mean()) >= 0.6:
+    for k in range(len(strokes)):
+        darker = [j for j in range(len(strokes)) if j != k and depth[j] > depth[k] + FRINGE_CONTRAST
+                  and _between(strokes[k][0], strokes[j][0], panel, tolerance=JPEG_COLOUR_SHIFT)]
+        if darker and pixels[k].any() and float(np.any([near[j] for j in darker], axis=0)[pixels[k]].mean()) >= 0.6:
             fringes.add(k)
     kept = [k for k in range(len(strokes)) if k not in fringes and pixels[k].any()]
-    parent = {k: k for k in kept}
+    spans = {k: int(columns[k].sum()) for k in kept}
+    # Each stroke joins the one longer stroke it lies along best (a tree, so a short stroke
+    # lying along two lines where they cross does not join the lines).
+    parent = {}
+    for a in kept:
+        along = {b: float(near[b][pixels[a]].mean()) for b in kept
+                 if b != a and (spans[b], b) > (spans[a], a)}
+        fits = []
+        for b, share in along.items():
+            alike = float(np.linalg.norm(strokes[a][0] - strokes[b][0])) < JPEG_COLOUR_SHIFT
+            variant = share >= 0.6 and (float(near[a][pixels[b]].mean()) >= 0.5 or spans[a] <= 0.5 * spans[b] or alike)
+            paler = _between(strokes[a][0], strokes[b][0], panel)  # a thin stretch of b, all partial coverage
+            continues = (alike or paler) and share > 0 and (columns[a] & columns[b]).sum() <= 0.3 * spans[a]
+            if variant or continues:
+                fits.append(b)
+        if fits:
+            parent[a] = max(fits, key=along.get)
 
     def root(k: int) -> int:
-        while parent[k] != k:
+        while k in parent:
             k = parent[k]
         return k
 
-    spans = {k: int(pixels[k].any(axis=0).sum()) for k in kept}
-    for a in kept:
-        for b in kept:
-            if a == b or spans[a] > spans[b]:
-                continue
-            # a lies along b, and b along a or a covers only a stretch of b (a shifted segment)
-            if float(near[b][pixels[a]].mean()) >= 0.6 and (
-                    float(near[a][pixels[b]].mean()) >= 0.5 or spans[a] <= 0.5 * spans[b]):
-                parent[root(a)] = root(b)
     groups: dict[int, list[int]] = {}
     for k in kept:
         groups.setdefault(root(k), []).append(k)

@@ -110,6 +110,16 @@ def _vector_pie(figure: Figure, frames: list[BBox]) -> Pie:
                   and not in_any(p.bbox, frames)]
     if len(candidates) < 2:
         raise MeasurementUnavailable("no pie wedges found")
+    try:
+        return _round_vector_pie(candidates)
+    except MeasurementUnavailable as round_failure:
+        try:
+            return _exploded_vector_pie(candidates)
+        except MeasurementUnavailable:
+            raise round_failure from None
+
+
+def _round_vector_pie(candidates: list) -> Pie:
     centre, radius = _rim_circle(np.concatenate([np.asarray(p.points) for p in candidates]))
     slices = []
     for path in candidates:
@@ -127,6 +137,61 @@ def _vector_pie(figure: Figure, frames: list[BBox]) -> Pie:
         raise MeasurementUnavailable(f"wedges cover {total:.0f} degrees, not a full circle")
     slices = [Slice(s.start, s.span * 360.0 / total, s.colour) for s in slices]
     return Pie(centre=centre, radius=radius, slices=tuple(sorted(slices, key=lambda s: s.start)))
+
+
+def _wedge_circle(points: np.ndarray) -> tuple[tuple[float, float], float] | None:
+    """Apex and radius of one wedge: the circle through its outer arc, when the apex sits
+    at its centre. The apex is the vertex between the two long straight edges (the arc's
+    samples lie close together)."""
+    step = np.hypot(*np.diff(np.vstack([points, points[:1]]), axis=0).T)
+    apex_index = int(np.argmax(np.minimum(step, np.roll(step, 1))))
+    apex = points[apex_index]
+    arc = points[np.hypot(points[:, 0] - apex[0], points[:, 1] - apex[1]) > 1e-6]
+    if len(arc) < 3:
+        return None
+    centre, radius = _fit_circle(arc)
+    residual = np.abs(np.hypot(arc[:, 0] - centre[0], arc[:, 1] - centre[1]) - radius)
+    if residual.max() > 0.01 * radius or np.hypot(apex[0] - centre[0], apex[1] - centre[1]) > 0.03 * radius:
+        return None
+    return centre, radius
+
+
+def _exploded_vector_pie(candidates: list) -> Pie:
+    """A pie whose wedges are pulled out from the centre (exploded): each wedge is a sector
+    of one common radius around its own apex. The pie's centre is the point from which
+    every apex lies along its wedge's middle direction (least squares); the slices' spans
+    are their arcs around their own apexes."""
+    wedges = []
+    for path in candidates:
+        points = np.asarray(path.points)
+        circle = _wedge_circle(points)
+        if circle is None:
+            continue
+        (ax, ay), radius = circle
+        distance = np.hypot(points[:, 0] - ax, points[:, 1] - ay)
+        start, span = _arc_cover(_angles(points[np.abs(distance - radius) <= 0.01 * radius], (ax, ay)))
+        wedges.append(((ax, ay), radius, Slice(start=start, span=span, colour=colour_key(path.fill))))
+    if len(wedges) < 2:
+        raise MeasurementUnavailable("no pie wedges found")
+    radii = np.array([r for _, r, _ in wedges])
+    if np.abs(radii - np.median(radii)).max() > 0.03 * np.median(radii):
+        raise MeasurementUnavailable("wedges of different radii: not one pie")
+    total = sum(s.span for *_, s in wedges)
+    if abs(total - 360.0) > CLOSURE_TOLERANCE * 360.0:
+        raise MeasurementUnavailable(f"wedges cover {total:.0f} degrees, not a full circle")
+    # apex_i = centre + offset_i * direction_i (y down in pixels, angles counter-clockwise)
+    n = len(wedges)
+    design = np.zeros((2 * n, 2 + n))
+    target = np.zeros(2 * n)
+    for i, ((ax, ay), _, piece) in enumerate(wedges):
+        angle = np.radians(piece.middle)
+        design[2 * i, 0], design[2 * i + 1, 1] = 1.0, 1.0
+        design[2 * i, 2 + i], design[2 * i + 1, 2 + i] = np.cos(angle), -np.sin(angle)
+        target[2 * i], target[2 * i + 1] = ax, ay
+    solution, *_ = np.linalg.lstsq(design, target, rcond=None)
+    slices = [Slice(s.start, s.span * 360.0 / total, s.colour) for *_, s in wedges]
+    return Pie(centre=(float(solution[0]), float(solution[1])), radius=float(np.median(radii)),
+               slices=tuple(sorted(slices, key=lambda s: s.start)))
 
 
 def _raster_circle(rgb: np.ndarray, background: np.ndarray) -> tuple[tuple[float, float], float]:
@@ -206,7 +271,65 @@ def _colour_clusters(samples: np.ndarray, radius: float = 30.0) -> tuple[np.ndar
     return np.array(centres), bin_label[inverse]
 
 
+def _sector_apex(contour: np.ndarray) -> tuple[np.ndarray, float]:
+    """Apex, radius and the unit direction towards the arc of a sector, from its outline:
+    the apex is the outline point from which the most outline points lie at the greatest
+    distance (the whole arc); from any other point only a point or two does."""
+    points = contour[:: max(1, len(contour) // 400)].astype(np.float32)
+    distance = np.hypot(points[:, None, 0] - points[None, :, 0], points[:, None, 1] - points[None, :, 1])
+    farthest = distance.max(axis=1)
+    on_arc = (np.abs(distance - farthest[:, None]) <= 1.5).sum(axis=1)
+    best = int(np.argmax(on_arc))
+    arc = points[np.abs(distance[best] - farthest[best]) <= 1.5]
+    towards_arc = arc.mean(axis=0) - points[best]
+    return points[best], float(farthest[best]), towards_arc / max(float(np.linalg.norm(towards_arc)), 1e-6)
+
+
+def _reassembled(rgb: np.ndarray, background: np.ndarray) -> np.ndarray:
+    """An exploded pie with its wedges pushed back: every solid piece (a wedge pulled out,
+    or the rest of the pie) is moved so that its apex meets the largest piece's apex, on
+    a canvas of the background colour. Raises when the pieces are not sectors of one
+    radius."""
+    ink = ink_mask(rgb, background, threshold=30.0).astype(np.uint8)
+    solid = cv2.morphologyEx(ink, cv2.MORPH_OPEN, np.ones((5, 5), np.uint8))
+    labels, stats, _ = component_stats(solid, min_area=200)
+    if len(stats) < 2:
+        raise MeasurementUnavailable("no exploded pie found")
+    pieces = []
+    for label in stats[np.argsort(-stats[:, 5]), 0]:
+        # the piece's own ink: opening rounds off a thin wedge's apex
+        mask = cv2.dilate((labels == label).astype(np.uint8), np.ones((7, 7), np.uint8)) & ink
+        contours, _ = cv2.findContours(mask, cv2.RETR_EXTERNAL, cv2.CHAIN_APPROX_NONE)
+        pieces.append((mask, *_sector_apex(max(contours, key=cv2.contourArea)[:, 0, :])))
+    radius = pieces[0][2]
+    # A thin wedge's faint tip is lost to the ink threshold: its apex is put back at the
+    # pie's radius from its arc.
+    pieces = [(mask, apex - (radius - reach) * direction, reach) for mask, apex, reach, direction in pieces
+              if abs(reach - radius) <= 0.08 * radius]
+    if len(pieces) < 2:
+        raise MeasurementUnavailable("pieces are not sectors of one pie")
+    canvas = np.empty_like(rgb)
+    canvas[:] = np.round(background).astype(rgb.dtype)
+    target = pieces[0][1]
+    for mask, apex, _ in pieces:
+        dx, dy = (int(round(v)) for v in target - apex)
+        ys, xs = np.nonzero(cv2.dilate(mask, np.ones((3, 3), np.uint8)))
+        inside = (ys + dy >= 0) & (ys + dy < rgb.shape[0]) & (xs + dx >= 0) & (xs + dx < rgb.shape[1])
+        canvas[ys[inside] + dy, xs[inside] + dx] = rgb[ys[inside], xs[inside]]
+    return canvas
+
+
 def _raster_pie(rgb: np.ndarray) -> Pie:
+    try:
+        return _round_raster_pie(rgb)
+    except MeasurementUnavailable as round_failure:
+        try:
+            return _round_raster_pie(_reassembled(rgb, background_rgb(rgb)))
+        except MeasurementUnavailable:
+            raise round_failure from None
+
+
+def _round_raster_pie(rgb: np.ndarray) -> Pie:
     """Slices as runs of one colour going round the pie.
 
     The pie is sampled on rings across its outer part (or across a donut's band); each angle
@@ -436,6 +559,22 @@ def _distance_to_segment(rgb: np.ndarray, a: np.ndarray, b: np.ndarray) -> np.nd
     return np.sqrt(((pixels - t[..., None] * direction) ** 2).sum(axis=-1))
 
 
+def _underlying_luma(rgb: np.ndarray, geometry: Pie, offset: tuple[int, int], shape: tuple[int, ...]) -> np.ndarray:
+    """Luma of what lies under each pixel of a crop: its slice's colour on the pie (by
+    angle), the background elsewhere."""
+    ox, oy = offset
+    cx, cy = geometry.centre
+    yy, xx = np.mgrid[oy:oy + shape[0], ox:ox + shape[1]]
+    distance = np.hypot(xx - cx, yy - cy)
+    angle = np.degrees(np.arctan2(-(yy - cy), xx - cx)) % 360.0
+    under = np.full(shape[:2], float(background_rgb(rgb) @ _LUMA), np.float32)
+    on_pie = (distance < geometry.radius) & (distance > geometry.hole)
+    for piece in geometry.slices:
+        inside = on_pie & ((angle - piece.start) % 360.0 < piece.span)
+        under[inside] = float(np.asarray(piece.colour, np.float32) @ _LUMA)
+    return np.maximum(under, 1.0)
+
+
 def _raster_label_lines(rgb: np.ndarray, geometry: Pie) -> list[TextSpan]:
     """Label lines near the pie, read by OCR; a line counts when three readings agree."""
     ink, (ox, oy) = _text_ink(rgb, geometry)
@@ -447,9 +586,11 @@ def _raster_label_lines(rgb: np.ndarray, geometry: Pie) -> list[TextSpan]:
     if not boxes:
         return []
     # The lines stacked on a white page, each in its own band: one OCR call reads them all.
-    # Text keeps its antialiased grey levels; everything that is not text turns white.
+    # Text keeps its antialiased levels, measured against what lies under it (a dark slice
+    # would otherwise blacken the glyphs' edges and fill their holes); all else turns white.
     crop = rgb[oy:oy + ink.shape[0], ox:ox + ink.shape[1]]
-    grey = cv2.cvtColor(np.ascontiguousarray(crop), cv2.COLOR_RGB2GRAY)
+    luma = crop.astype(np.float32) @ _LUMA
+    grey = np.clip(255.0 * luma / _underlying_luma(rgb, geometry, (ox, oy), ink.shape), 0, 255)
     near_text = cv2.dilate(ink.astype(np.uint8), np.ones((3, 3), np.uint8)).astype(bool)
     grey = np.where(near_text, grey, 255).astype(np.uint8)
     pad = 6
@@ -471,10 +612,44 @@ def _raster_label_lines(rgb: np.ndarray, geometry: Pie) -> list[TextSpan]:
                          for b0, b1 in bands])
     lines = []
     for (bx, by, bw, bh), texts in zip(boxes, zip(*readings)):
-        # Kept: readings that agree, of one percentage no larger than the whole. Labels run
-        # together ('4.8%2.7%') are often misread and are left out, as is '214%' for '21.4%'.
-        values = [float(m.group(1).replace(",", ".")) for m in _PERCENTAGE.finditer(texts[0])]
-        if len(set(texts)) == 1 and len(values) == 1 and values[0] <= 100.0:
-            lines.append(TextSpan(text=texts[0], bbox=(ox + bx, oy + by, ox + bx + bw, oy + by + bh),
-                                  size_pt=0.0, angle=0.0, font="ocr"))
-    return lines
+        lines.extend(_agreed_percentages(texts, (ox + bx, oy + by, ox + bx + bw, oy + by + bh)))
+    return _restore_decimal_points(lines)
+
+
+def _decimals(text: str) -> int:
+    number = _PERCENTAGE.match(text).group(1)
+    return len(re.split(r"[.,]", number)[1]) if re.search(r"[.,]", number) else 0
+
+
+def _restore_decimal_points(labels: list[TextSpan]) -> list[TextSpan]:
+    """The labels of one chart share a number format, and the decimal point is the glyph
+    text recognition loses most often ('119%' for '11.9%', the same at every scale). When
+    most other labels have d decimals, a label read with none and more than d digits gets
+    its point back d digits from the end."""
+    kept = []
+    for index, label in enumerate(labels):
+        others = [_decimals(other.text) for k, other in enumerate(labels) if k != index]
+        digits = _PERCENTAGE.match(label.text).group(1)
+        common = max(set(others), key=others.count) if others else 0
+        if common and others.count(common) > len(others) / 2 and _decimals(label.text) == 0 and len(digits) > common:
+            label = TextSpan(text=f"{digits[:-common]}.{digits[-common:]}%", bbox=label.bbox, size_pt=label.size_pt,
+                             angle=label.angle, font=label.font)
+        if float(_PERCENTAGE.match(label.text).group(1).replace(",", ".")) <= 100.0:  # no part exceeds the whole
+            kept.append(label)
+    return kept
+
+
+def _agreed_percentages(texts: tuple[str, ...], box: BBox) -> list[TextSpan]:
+    """The percentages of one label line when every reading gives the same ones (a misread
+    digit seldom repeats at another scale). Labels run together ('7.9%15.5%', overlapping
+    labels of thin slices) are split into their percentages, each with its share of the
+    line's box (by character position), so each can be placed on its own slice."""
+    found = [[m for m in _PERCENTAGE.finditer(text)] for text in texts]
+    values = [[m.group(1).replace(",", ".") for m in matches] for matches in found]
+    if not values[0] or any(v != values[0] for v in values):
+        return []
+    text = texts[0]
+    x0, y0, x1, y1 = box
+    scale = (x1 - x0) / max(len(text), 1)
+    return [TextSpan(text=match.group(0), bbox=(x0 + match.start() * scale, y0, x0 + match.end() * scale, y1),
+                     size_pt=0.0, angle=0.0, font="ocr") for match in found[0]]
