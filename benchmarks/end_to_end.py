@@ -5,7 +5,10 @@ figure to the audited figure on the same page with the highest box overlap (IoU 
 and prints figure recall and precision, chart-type accuracy, and per rule the precision
 and recall of findings on matched figures.
 
-    python benchmarks/end_to_end.py [--audit DIR]
+    python benchmarks/end_to_end.py [--audit DIR] [--details]
+
+--details lists each missed or unexpected finding with its figure (source, chart type in
+truth and as audited, and the rules it left unmeasured).
 """
 
 from __future__ import annotations
@@ -42,6 +45,7 @@ def rows(path: Path) -> list[dict]:
 def main() -> None:
     parser = argparse.ArgumentParser()
     parser.add_argument("--audit", type=Path, help="an audit of sample_corpus/ already written")
+    parser.add_argument("--details", action="store_true", help="list each missed and unexpected finding")
     args = parser.parse_args()
     out = args.audit
     if out is None:
@@ -63,6 +67,7 @@ def main() -> None:
     tp: Counter[str] = Counter()
     fp: Counter[str] = Counter()
     fn: Counter[str] = Counter()
+    details: list[str] = []
     for document in truth["documents"]:
         name = Path(document["path"]).name
         for expected in document.get("figures", []):
@@ -82,10 +87,12 @@ def main() -> None:
             for rule in found | wanted:
                 if rule in found and rule in wanted:
                     tp[rule] += 1
-                elif rule in found:
-                    fp[rule] += 1
-                else:
-                    fn[rule] += 1
+                    continue
+                (fp if rule in found else fn)[rule] += 1
+                unmeasured = [r for r in best["unmeasured"].split(";") if r]
+                details.append(f"{'FP' if rule in found else 'FN'} {rule:<21} {best['figure_id']:<24} {best['source']:<6} "
+                               f"truth {expected['chart_type']:<9} audit {best['chart_type'] or '-':<9} "
+                               f"{'unmeasured here' if rule in unmeasured else ''}")
     print(f"figures: truth {truth_count}, audited {len(figures)}, matched {matched} "
           f"(recall {matched / truth_count:.3f}, precision {matched / max(len(figures), 1):.3f})")
     print(f"chart type correct on matched figures: {types_right}/{matched} ({types_right / max(matched, 1):.3f})")
@@ -97,6 +104,8 @@ def main() -> None:
         precision = tp[rule] / (tp[rule] + fp[rule]) if tp[rule] + fp[rule] else float("nan")
         recall = tp[rule] / (tp[rule] + fn[rule]) if tp[rule] + fn[rule] else float("nan")
         print(f"{rule:<22} {tp[rule]:>3} {fp[rule]:>3} {fn[rule]:>3} {precision:>9.2f} {recall:>7.2f}")
+    if args.details:
+        print("\n".join(sorted(details)))
 
 
 if __name__ == "__main__":

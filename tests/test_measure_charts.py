@@ -87,3 +87,24 @@ def test_natural_order():
     assert natural_order(["Q1", "Q2", "Q3"]) == "ordinal"
     assert natural_order(["Apple", "Kiwi", "Pear"]) == "alphabetical"
     assert natural_order(["Kiwi", "Apple", "Pear"]) is None
+
+
+def _pie_labelled_beside(fig):
+    # Long names with their percentages, placed beside the slices by matplotlib: the labels'
+    # centres lie well outside the pie, their near ends do not. They add up to 104.
+    labels = ["Word of mouth 42%", "Harbour website 26%", "Social media 18%", "Posters 12%", "Radio 6%"]
+    fig.add_subplot().pie([42, 26, 18, 12, 6], labels=labels)
+
+
+def _pie_with_value_legend(fig):
+    # The values only in a legend at the figure's right edge, far from the pie.
+    ax = fig.add_axes((0.02, 0.1, 0.5, 0.8))
+    wedges, _ = ax.pie([42, 26, 18, 12, 6])
+    fig.legend(wedges, ["Alder 42%", "Birch 26%", "Cedar 18%", "Dogwood 12%", "Elm 6%"], loc="center right")
+
+
+@pytest.mark.parametrize("draw", [_pie_labelled_beside, _pie_with_value_legend])
+def test_vector_pie_labels_beside_or_in_a_legend_are_summed(draw):
+    figure = vector_figure(Case("pie-labels", "pie", draw, {}))
+    total = Measurements(figure).get("pie_label_total")
+    assert (total.total, total.labelled, total.estimated) == (pytest.approx(104.0), 5, 0)

@@ -460,14 +460,17 @@ def pie_percentages(figure: Figure, measurements) -> list[Percentage]:
     cx, cy = geometry.centre
     reach = 1.5 * geometry.radius
     spans = figure.vector.texts if is_vector(figure) else _raster_label_lines(require_pixels(figure), geometry)
-    found = []
+    found, near = [], []
     for span in spans:
-        sx, sy = (span.bbox[0] + span.bbox[2]) / 2, (span.bbox[1] + span.bbox[3]) / 2
-        if np.hypot(sx - cx, sy - cy) > reach:
-            continue
+        x0, y0, x1, y1 = span.bbox
+        # how far the label's nearest point is: a long label beside the pie starts close to it
+        gap = float(np.hypot(max(x0 - cx, 0.0, cx - x1), max(y0 - cy, 0.0, cy - y1)))
         for match in _PERCENTAGE.finditer(span.text):
             found.append(Percentage(value=float(match.group(1).replace(",", ".")), bbox=span.bbox))
-    return found
+            near.append(gap <= reach)
+    if len(found) == len(geometry.slices):
+        return found  # one percentage per slice, wherever printed (a legend with values)
+    return [label for label, close in zip(found, near) if close]
 
 
 @dataclass(frozen=True)
