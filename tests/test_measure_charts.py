@@ -108,3 +108,16 @@ def test_vector_pie_labels_beside_or_in_a_legend_are_summed(draw):
     figure = vector_figure(Case("pie-labels", "pie", draw, {}))
     total = Measurements(figure).get("pie_label_total")
     assert (total.total, total.labelled, total.estimated) == (pytest.approx(104.0), 5, 0)
+
+
+def _filled_boxes(fig):
+    # Filled, outlined boxes: PDF output may paint the fill and the outline as two paths.
+    rng = np.random.default_rng(5)
+    samples = [rng.normal(centre, 4.0, 40) for centre in (30, 20, 40, 25)]
+    fig.add_subplot().boxplot(samples, tick_labels=["Wrenfold", "Tansy", "Oxley", "Marram"], patch_artist=True,
+                              boxprops={"facecolor": "#DCE9F5", "edgecolor": "#333333"})
+
+
+def test_each_vector_box_is_found_once():
+    boxes = Measurements(_figure(_filled_boxes, "vector", "box")).get("boxes")
+    assert len(boxes) == 4

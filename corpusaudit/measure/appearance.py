@@ -197,11 +197,66 @@ def _fill_scale(pixels: np.ndarray, offset: int) -> FoundScale | None:
     return FoundScale("fills", _shift(region, offset), colours, colour.analyse_scale(colours))
 
 
+BAR_JOIN_PX = 1.5  # steps of a drawn colour bar meet within this (snapping and antialiasing seams)
+
+
+def _stacked_runs(rects: list[PathItem], along: int) -> list[list[PathItem]]:
+    """Rects of one column (along=1: same x extent, stacked in y) or one row (along=0), in
+    runs of rects that touch end to end."""
+    across = 1 - along
+    columns: dict[tuple[int, int], list[PathItem]] = {}
+    for rect in rects:
+        columns.setdefault((round(rect.bbox[across]), round(rect.bbox[across + 2])), []).append(rect)
+    runs = []
+    for members in columns.values():
+        members.sort(key=lambda r: r.bbox[along])
+        run = [members[0]]
+        for rect in members[1:]:
+            if abs(rect.bbox[along] - run[-1].bbox[along + 2]) <= BAR_JOIN_PX:
+                run.append(rect)
+            else:
+                runs.append(run)
+                run = [rect]
+        runs.append(run)
+    return runs
+
+
+def _vector_colour_bars(figure: Figure) -> list[FoundScale]:
+    """Colour bars drawn as paths: a single column (or row) of filled rects touching end to
+    end whose colours walk in order, at least 4 times as long as wide and MIN_SCALE_STEPS
+    colours. Columns with a neighbour of the same extent are heatmap cells, not a bar."""
+    rects = [p for p in figure.vector.paths if "f" in p.kind and p.is_rect and p.fill is not None
+             and p.fill_opacity > 0.5 and p.bbox[2] - p.bbox[0] >= 2 and p.bbox[3] - p.bbox[1] >= 1]
+    scales = []
+    for along in (1, 0):  # vertical bars, then horizontal ones
+        runs = [run for run in _stacked_runs(rects, along) if len(run) >= MIN_SCALE_STEPS]
+        boxes = [union_box([r.bbox for r in run]) for run in runs]
+        for run, box in zip(runs, boxes):
+            length, breadth = box[along + 2] - box[along], box[3 - along] - box[1 - along]
+            beside = any(abs(other[along] - box[along]) <= BAR_JOIN_PX and abs(other[along + 2] - box[along + 2]) <= BAR_JOIN_PX
+                         and (abs(other[1 - along] - box[3 - along]) <= BAR_JOIN_PX or abs(other[3 - along] - box[1 - along]) <= BAR_JOIN_PX)
+                         for other in boxes if other is not box)
+            if length < 4 * breadth or length < 24 or beside:
+                continue
+            colours = np.array([r.fill for r in run], dtype=float)
+            if along == 1:
+                colours = colours[::-1]  # bottom to top, as for rasters
+            if _distinct_steps(colours) < MIN_SCALE_STEPS or not colour.ordered_like_a_path(colour.srgb_to_lab(colours)):
+                continue
+            scales.append(FoundScale("colour bar", tuple(float(v) for v in box), colours, colour.analyse_scale(colours)))
+    return scales
+
+
 @measurement("colour_scales")
 def colour_scales(figure: Figure, measurements) -> list[FoundScale]:
-    """Colour bars found in the rendered pixels (vector and raster alike), largest first;
-    for heatmaps and maps without a colour bar, the ordered fill colours instead.
+    """Colour bars, largest first: drawn as paths in a vector figure (its exact colours),
+    else found in the rendered pixels; for heatmaps and maps without a colour bar, the
+    ordered fill colours instead.
     Raises MeasurementUnavailable for a heatmap or map whose scale cannot be read."""
+    if figure.vector is not None:
+        drawn = _vector_colour_bars(figure)
+        if drawn:
+            return sorted(drawn, key=lambda s: -(s.bbox[2] - s.bbox[0]) * (s.bbox[3] - s.bbox[1]))
     pixels = require_pixels(figure)
     inner = _inner(pixels)
     offset = (pixels.shape[0] - inner.shape[0]) // 2

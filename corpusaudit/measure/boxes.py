@@ -43,7 +43,8 @@ def _vector_boxes(figure: Figure, plot: BBox, frames: list[BBox]) -> list[Box]:
         medians = [b for b in horizontal if abs(b[0] - x0) <= 1.5 and abs(b[2] - x1) <= 1.5 and y0 - 0.5 <= b[1] <= y1 + 0.5]
         middle = (x0 + x1) / 2
         whiskers = [b for b in vertical if abs(b[0] - middle) <= 1.5 and (abs(b[3] - y0) <= 1.5 or abs(b[1] - y1) <= 1.5)]
-        if medians and whiskers:
+        # A box filled and outlined as two paths is one box.
+        if medians and whiskers and not any(max(abs(a - b) for a, b in zip(box.bbox, path.bbox)) <= 1.0 for box in boxes):
             boxes.append(Box(bbox=path.bbox, median=medians[0][1], position=middle))
     return boxes
 

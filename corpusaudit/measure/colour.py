@@ -846,7 +846,7 @@ def _trim_end_blends(profile: np.ndarray, runs: list[tuple[int, int]]) -> list[t
     return runs
 
 
-def _ordered_like_a_path(lab: np.ndarray, allowed_misses: float = 0.1) -> bool:
+def ordered_like_a_path(lab: np.ndarray, allowed_misses: float = 0.1) -> bool:
     """True when each colour's nearest other colour is a neighbour in the sequence.
 
     Holds for samples taken in order along a smooth scale; fails for shuffled colours
@@ -912,7 +912,7 @@ def _bars_along_columns(
             continue
         run_lab = _run_means(profile, runs)
         path_length = np.linalg.norm(np.diff(run_lab, axis=0), axis=1).sum()
-        if path_length < 30.0 or not _ordered_like_a_path(run_lab):
+        if path_length < 30.0 or not ordered_like_a_path(run_lab):
             continue
         top, bottom = y + runs[0][0], y + runs[-1][1]
         colours = np.array(
