@@ -85,6 +85,9 @@ def _dense_region(centres: np.ndarray, plot: BBox) -> BBox:
     return (float(nearest[:, 0].min()), float(nearest[:, 1].min()), float(nearest[:, 0].max()), float(nearest[:, 1].max()))
 
 
+BUBBLE_AREA_RANGE = 4.0  # 90th / 10th percentile of isolated marker areas beyond which markers are sized by data
+
+
 def _raster_markers(rgb: np.ndarray, plot: BBox) -> Markers:
     x0, y0, x1, y1 = (int(round(v)) for v in plot)
     inner = np.ascontiguousarray(rgb[y0 + 2:y1 - 1, x0 + 2:x1 - 1])
@@ -103,12 +106,17 @@ def _raster_markers(rgb: np.ndarray, plot: BBox) -> Markers:
         raise MeasurementUnavailable("no isolated markers to measure their size")
     single = float(np.median(areas[round_blobs & (areas <= 2.5 * np.percentile(areas[round_blobs], 25))]))
     radius = float(np.sqrt(single / np.pi))
-    total_area, visible_area = 0.0, 0.0
+    # Bubbles: markers sized by a variable, so a large round blob is one large marker rather
+    # than a clump of small ones (their isolated round blobs span a wide range of areas).
+    round_areas = areas[round_blobs]
+    bubbles = len(round_areas) >= 5 and np.percentile(round_areas, 90) > BUBBLE_AREA_RANGE * np.percentile(round_areas, 10)
+    total_area, visible_area, bubble_count = 0.0, 0.0, 0
     cell = max(4, int(6 * radius))
     for index, (_, bx, by, bw, bh, area) in enumerate(stats):
-        if area <= 1.6 * single:
+        if area <= 1.6 * single or bubbles and round_blobs[index]:
             total_area += area
             visible_area += area
+            bubble_count += 1
             continue
         blob = labels[by:by + bh, bx:bx + bw] == stats[index, 0]
         for cy in range(0, bh, cell):
@@ -120,6 +128,7 @@ def _raster_markers(rgb: np.ndarray, plot: BBox) -> Markers:
                 coverage = min(covered / piece.size, 0.97)
                 total_area += -np.log(1.0 - coverage) * piece.size if coverage > 0.5 else covered
                 visible_area += covered
+        bubble_count += max(1, round(area / float(np.median(round_areas))))
     hidden = max(0.0, 1.0 - visible_area / total_area) if total_area else 0.0
     frame = ink.shape
     left, top, right, bottom = _framed_sides(rgb, (x0, y0, x1, y1), panel)
@@ -128,7 +137,8 @@ def _raster_markers(rgb: np.ndarray, plot: BBox) -> Markers:
             if area <= 2.5 * single and (left and bx <= 1 or top and by <= 1 or right and bx + bw >= frame[1] - 1
                                          or bottom and by + bh >= frame[0] - 1)]
     centres = centroids + [x0 + 2, y0 + 2]
-    return Markers(count=int(round(total_area / single)), radius=radius, hidden_share=float(hidden),
+    count = bubble_count if bubbles else int(round(total_area / single))
+    return Markers(count=count, radius=radius, hidden_share=float(hidden),
                    edge_count=len(edge), edge_boxes=tuple(edge), dense_region=_dense_region(centres, plot))
 
 
