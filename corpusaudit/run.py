@@ -83,8 +83,10 @@ def _png(pixels: np.ndarray, max_side: int) -> bytes:
     if scale < 1.0:
         pixels = cv2.resize(pixels, (max(1, round(width * scale)), max(1, round(height * scale))),
                             interpolation=cv2.INTER_AREA)
-    # OpenCV's encoder is about twice as fast as Pillow's at the same compression level.
-    ok, encoded = cv2.imencode(".png", cv2.cvtColor(pixels, cv2.COLOR_RGB2BGR), [cv2.IMWRITE_PNG_COMPRESSION, 3])
+    # OpenCV's encoder is about twice as fast as Pillow's at the same compression level, and the
+    # "up" filter alone three times faster than trying every filter per row, for a few % more bytes.
+    ok, encoded = cv2.imencode(".png", cv2.cvtColor(pixels, cv2.COLOR_RGB2BGR),
+                               [cv2.IMWRITE_PNG_COMPRESSION, 3, cv2.IMWRITE_PNG_FILTER, cv2.IMWRITE_PNG_FILTER_UP])
     if not ok:
         raise ValueError("PNG encoding failed")
     return encoded.tobytes()
