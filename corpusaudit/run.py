@@ -112,7 +112,11 @@ def _classify(figure: Figure, prediction: Prediction | None, config: Config, mea
     figure.chart_type, figure.confidence = prediction.label, prediction.confidence
     figure.low_confidence = prediction.confidence < config.classify.low_confidence
     figure.classified_by = "model"
-    if figure.vector is not None and figure.chart_type != "pie" and _vector_pie(figure, measurements):
+    if figure.image_info.get("layout") == "table":
+        # Extraction found ruled cells of text (a table captioned as a figure): no chart.
+        figure.chart_type, figure.confidence, figure.low_confidence = "not_chart", 1.0, False
+        figure.classified_by = "vector"
+    elif figure.vector is not None and figure.chart_type != "pie" and _vector_pie(figure, measurements):
         # Filled wedges whose arcs close one circle are a pie whatever the pixels suggest.
         figure.chart_type, figure.confidence, figure.low_confidence = "pie", 1.0, False
         figure.classified_by = "vector"

@@ -192,6 +192,20 @@ def test_a_table_its_author_captioned_as_a_figure_is_a_figure(tmp_path):
     (figure,) = extract(_save(doc, tmp_path / "tables.pdf")).figures
     assert (figure.source, figure.figure_number) == ("vector", "4")
     assert iou(figure.bbox, tuple(table)) > 0.95
+    assert figure.image_info["layout"] == "table"  # so it is labelled not_chart whatever the model says
+
+
+def test_a_figure_drawn_as_a_table_is_not_a_chart():
+    from corpusaudit.classify import Prediction
+    from corpusaudit.config import build_config
+    from corpusaudit.measure import Measurements
+    from corpusaudit.model import Figure
+    from corpusaudit.run import _classify
+
+    figure = Figure(figure_id="t", document_id="d", path="d.pdf", page=1, index=0, bbox=(0, 0, 100, 50),
+                    source="vector", width_px=200, height_px=100, image_info={"paths": 12, "layout": "table"})
+    _classify(figure, Prediction("box", 0.96, (("box", 0.96),)), build_config({}), Measurements(figure))
+    assert (figure.chart_type, figure.classified_by, figure.low_confidence) == ("not_chart", "vector", False)
 
 
 def test_panels_of_one_embedded_graphic_under_one_caption_are_one_figure(tmp_path):

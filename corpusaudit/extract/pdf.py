@@ -396,8 +396,10 @@ def _page_figures(reading: _Page, infos: list[dict], repeated: set[tuple]) -> tu
             region.labels += extra.labels
             region.box = union((region.box, extra.box))
         merged.append((region, caption))
-    merged += _captioned_tables(reading, tables, attachable, [c for c in reading.shown_captions() if c not in captions],
-                                text_boxes)
+    captioned_tables = _captioned_tables(reading, tables, attachable,
+                                         [c for c in reading.shown_captions() if c not in captions], text_boxes)
+    merged += captioned_tables
+    drawn_as_table = {id(region) for region, _ in captioned_tables}
     merged.sort(key=lambda rc: (reading.shown(rc[0].box).y0, reading.shown(rc[0].box).x0))
 
     scale = config.dpi / 72.0
@@ -414,8 +416,10 @@ def _page_figures(reading: _Page, infos: list[dict], repeated: set[tuple]) -> tu
                                    effective_ppi=round(group.effective_ppi(), 1), vector=evidence,
                                    image_info=info, native_pixels=lossy_native_pixels(reading.pdf, info)))
         else:
+            # a table or framed box captioned as a figure: drawn as one, not a chart
+            layout = {"layout": "table"} if id(region) in drawn_as_table else {}
             figures.append(_figure(reading, len(figures), shown, "vector", pixels, caption, vector=evidence,
-                                   image_info={"paths": len(region.paths)}))
+                                   image_info={"paths": len(region.paths), **layout}))
     return figures, decorations
 
 
