@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import argparse
 import csv
+import statistics
 import sys
 import time
 from collections import defaultdict
@@ -118,8 +119,10 @@ def main() -> None:
     args = parser.parse_args()
     sizes = [int(s) for s in args.sizes.split(",")]
     dpi = load_config(None).extract.dpi
-    print(f"{'docs':>6} {'wall s':>8} {'docs/s':>7} {'pages/s':>8} {'ms/doc':>8} {'peak MiB':>9} "
+    print(f"{'docs':>6} {'wall s':>8} {'docs/s':>7} {'pages/s':>8} {'ms/doc':>8} {'peak MiB':>9} {'median':>7} "
           f"{'floor s':>8} {'ratio':>6}")
+    print("  (peak: the biggest worker's peak resident size; median: the median of the workers' peaks,"
+          " each worker serving up to 25 documents)")
     one_job: dict[int, float] = {}
     for size in sizes:
         folder = corpus_of(size)
@@ -127,7 +130,8 @@ def main() -> None:
         one_job[size] = wall
         floor, pages = floor_seconds(folder, out, dpi)
         print(f"{size:>6} {wall:>8.2f} {size / wall:>7.2f} {pages / wall:>8.1f} {1000 * wall / size:>8.1f} "
-              f"{summary.peak_worker_rss / 2**20:>9.0f} {floor:>8.2f} {wall / floor:>6.2f}", flush=True)
+              f"{summary.peak_worker_rss / 2**20:>9.0f} {statistics.median(summary.worker_peaks) / 2**20:>7.0f} "
+              f"{floor:>8.2f} {wall / floor:>6.2f}", flush=True)
     folder = corpus_of(args.speedup_size)
     one = one_job.get(args.speedup_size) or run_audit(folder, 1, "j1")[0]
     two, _, _ = run_audit(folder, 2, "j2")

@@ -71,6 +71,7 @@ class AuditSummary:
     reused: int = 0
     elapsed_s: float = 0.0
     peak_worker_rss: int = 0
+    worker_peaks: list[int] = field(default_factory=list)  # each worker's peak resident size, bytes
 
     def worst_severity_rank(self) -> int:
         return max((SEVERITY_RANK[s] for s, n in self.findings_by_severity.items() if n), default=0)
@@ -319,6 +320,7 @@ def _results(docs: list[Document], config: Config, options: RunOptions,
 
     def note_peak(rss: int) -> None:
         summary.peak_worker_rss = max(summary.peak_worker_rss, rss)
+        summary.worker_peaks.append(rss)
 
     try:  # loaded once here, workers forked from this process share it (about 1 s each otherwise)
         _classifier()
