@@ -123,6 +123,8 @@ CASES = [
     ("line-on-categories", "line", lines(2, x=NAMES), lines(2, x=["Jan", "Feb", "Mar", "Apr", "May", "Jun"]), True),
     ("line-uneven-axis", "line", lines(1, x=["1990", "1995", "2000", "2001", "2002", "2010"]),
      lines(1, x=["1990", "1995", "2000", "2005", "2010", "2015"]), True),
+    # small numbers with one digit: a row of labels taller than wide that is still level
+    ("line-uneven-axis", "line", lines(1, x=["1", "2", "5", "10"]), lines(1, x=["0", "5", "10", "15"]), True),
     ("line-marker-gaps", "line", lines(1, x=np.array([0, 1, 2, 10, 11, 30.0])),
      lines(1, x=np.array([0, 1, 2, 10, 11, 30.0]), markers=True), False),
     ("area-stacked", "area", areas(True), areas(False), False),

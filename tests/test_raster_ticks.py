@@ -192,3 +192,213 @@ def test_baseline_rule_on_a_filled_panel(low, flagged):
     found, unmeasured = _found(_matplotlib(_bars([50, 70, 90, 65], NAMES[:4], low=low), style="ggplot")[0])
     assert "bar-baseline" not in unmeasured
     assert ("bar-baseline" in found) is flagged
+
+
+# ------------------------------------------------------------------ x labels one per tick (issue #5)
+# matplotlib is the reference renderer: it centres level tick labels on their ticks, turns rotated ones
+# by the angle given, and plots a list of strings as categories at equal spacing (its documented
+# categorical axis), so the truth of each chart below is how it was drawn. Words are invented.
+
+
+def _line(labels, rotation=0.0, bottom=0.3):
+    def draw(fig):
+        ax = fig.add_subplot()
+        ax.plot(list(labels), [3, 1, 4, 1, 5, 9, 2][:len(labels)], marker="o")
+        for label in ax.get_xticklabels():
+            label.set_rotation(rotation)
+        fig.subplots_adjust(bottom=bottom)
+        return ax
+    return draw
+
+
+def _line_figure(draw) -> Figure:
+    figure, _ = _matplotlib(draw)
+    return Figure(**{**figure.__dict__, "chart_type": "line"})
+
+
+@needs_ocr
+@pytest.mark.parametrize("rotation", [0, 45, 90, -90])
+def test_category_labels_of_a_line_are_read_at_any_rotation(rotation):
+    # -90 reads down the page, 90 up it: both turns are read and the surer reading kept
+    figure = _line_figure(_line(NAMES, rotation))
+    axis = Measurements(figure).get("axes").x
+    assert axis.labels == NAMES and not any(t.clipped for t in axis.ticks)
+    found, unmeasured = _found(figure)
+    assert "line-on-categories" in found and "line-on-categories" not in unmeasured
+
+
+@needs_ocr
+def test_month_labels_of_a_line_turned_upright_are_no_finding():
+    found, unmeasured = _found(_line_figure(_line(MONTHS, 90)))
+    assert "line-on-categories" not in found and "line-on-categories" not in unmeasured
+
+
+@needs_ocr
+@pytest.mark.parametrize("rotation", [0, 90])
+@pytest.mark.parametrize("labels, flagged", [(["1", "2", "5", "10", "20"], True), (["0", "5", "10", "15", "20"], False)])
+def test_uneven_numeric_labels_drawn_evenly(labels, flagged, rotation):
+    # matplotlib places string labels at equal steps: 1, 2, 5, 10, 20 then step by 1..10 (ratio 10)
+    figure = _line_figure(_line(labels, rotation))
+    assert Measurements(figure).get("axes").x.labels == labels
+    found, unmeasured = _found(figure)
+    assert "line-uneven-axis" not in unmeasured
+    assert ("line-uneven-axis" in found) is flagged
+
+
+def test_single_glyph_labels_do_not_turn_a_level_row():
+    # three one-digit labels are taller than wide; the two-digit ones show the row is level
+    figure = _line_figure(_line(["1", "2", "5", "10", "20"]))
+    assert Measurements(figure).get("tick_label_angle").angle == pytest.approx(0.0, abs=1.0)
+
+
+@needs_ocr
+@pytest.mark.parametrize("rotation", [90, -90])
+def test_bar_order_reads_upright_labels_either_way(rotation):
+    figure, _ = _matplotlib(_bars([30, 80, 50, 60, 40], NAMES, rotation=rotation))
+    assert [t.text for t in Measurements(figure).get("x_label_texts")] == NAMES
+    found, unmeasured = _found(figure)
+    assert "bar-order" in found and "bar-order" not in unmeasured
+
+
+def _level_labels(words, centres, ticks) -> Figure:
+    """An axis frame drawn with Pillow: tick marks at `ticks`, level labels centred at `centres`."""
+    from matplotlib import font_manager
+    from PIL import Image, ImageDraw, ImageFont
+
+    font = ImageFont.truetype(font_manager.findfont("DejaVu Sans"), 20)
+    image = Image.new("RGB", (int(max(centres + ticks)) + 220, 460), "white")
+    pen = ImageDraw.Draw(image)
+    pen.line([(100, 40), (100, 360), (image.width - 60, 360)], fill="black", width=2)
+    for tick in ticks:
+        pen.line([(tick, 360), (tick, 367)], fill="black", width=2)
+    for centre, word in zip(centres, words):
+        left, _, right, _ = font.getbbox(word)
+        pen.text((centre - (right - left) / 2 - left, 374), word, font=font, fill="black")
+    return _figure(np.asarray(image))
+
+
+def _touching_labels(words, gap: int = 3) -> tuple[Figure, list[int]]:
+    """Level labels each centred on its tick mark, neighbours `gap` pixels apart: closer than the
+    space that separates labels' blobs, so they are found as one."""
+    from matplotlib import font_manager
+    from PIL import ImageFont
+
+    font = ImageFont.truetype(font_manager.findfont("DejaVu Sans"), 20)
+    widths = [font.getbbox(word)[2] - font.getbbox(word)[0] for word in words]
+    centres, x = [], 140.0
+    for index, width in enumerate(widths):
+        x += width / 2 if index == 0 else (widths[index - 1] + width) / 2 + gap
+        centres.append(int(round(x)))
+    return _level_labels(words, centres, centres), centres
+
+
+@needs_ocr
+def test_labels_touching_their_neighbours_are_cut_at_their_ticks():
+    words = ["Kalo", "Mirebsa", "Tor", "Quniren"]
+    figure, centres = _touching_labels(words)
+    measurements = Measurements(figure)
+    assert len(measurements.get("label_blobs")["x"]) < len(words)  # found joined
+    assert measurements.get("tick_marks")["x"] == pytest.approx(centres, abs=1.5)
+    assert [t.text for t in measurements.get("x_label_texts")] == words
+
+
+def test_a_label_running_past_the_image_edge_is_cut_off_and_one_clear_of_it_is_not():
+    def draw(fig):  # upright labels hang down from their ticks; only the long one reaches the bottom
+        ax = fig.add_subplot()
+        ax.bar(range(3), [3, 8, 5], tick_label=["Kal", "Mirebsatorulkalovel", "Sat"], color="C0")
+        for label in ax.get_xticklabels():
+            label.set_rotation(90)
+        fig.subplots_adjust(bottom=0.18)
+        return ax
+    figure, _ = _matplotlib(draw)
+    assert [b.clipped for b in Measurements(figure).get("label_blobs")["x"]] == [False, True, False]
+
+
+def test_what_is_left_of_a_cut_off_label_may_end_a_month_or_a_number():
+    from corpusaudit.measure.axes import could_end_ordered_label
+
+    assert could_end_ordered_label("ember") and could_end_ordered_label("ept") and could_end_ordered_label("ek 3")
+    assert not could_end_ordered_label("ovel") and not could_end_ordered_label("rsator")
+
+
+def test_jpeg_halo_on_a_white_page_is_not_a_filled_panel():
+    # faint JPEG ringing round many lines on a white page is a light tint, but no flat panel
+    import cv2
+
+    def draw(fig):
+        ax = fig.add_subplot()
+        for k in range(7):
+            ax.plot(NAMES, np.linspace(k, k + 2, len(NAMES)) + np.sin(np.arange(len(NAMES)) + k), color=f"C{k}")
+        return ax
+    figure, expected = _matplotlib(draw, size=(5.1, 3.4))
+    ok, encoded = cv2.imencode(".jpg", np.ascontiguousarray(figure.pixels[:, :, ::-1]), [cv2.IMWRITE_JPEG_QUALITY, 80])
+    pixels = cv2.imdecode(encoded, cv2.IMREAD_COLOR)[:, :, ::-1]
+    assert Measurements(_figure(pixels, "line")).get("plot_area") == pytest.approx(expected, abs=3.0)
+
+
+@needs_ocr
+def test_minor_ticks_are_not_label_positions():
+    # matplotlib draws minor ticks shorter than major ones (2 pt against 3.5 pt in its default style)
+    def draw(fig):
+        ax = fig.add_subplot()
+        ax.plot([0, 4, 10], [1, 3, 2])
+        ax.set_xlim(0, 10)
+        ax.set_xticks([0, 2, 4, 6, 8, 10])
+        ax.minorticks_on()
+        return ax
+    figure, (x0, _, x1, _) = _matplotlib(draw)
+    measurements = Measurements(figure)
+    expected = [x0 + (x1 - x0) * v / 10 for v in (0, 2, 4, 6, 8, 10)]
+    assert measurements.get("tick_marks")["x"] == pytest.approx(expected, abs=1.5)
+    assert measurements.get("axes").x.labels == ["0", "2", "4", "6", "8", "10"]
+
+
+# Two-word labels whose word space (three spaces wide) parts them into two blobs each.
+TWO_WORDS = ["Kal   Vesh", "Mir   Tob", "Sat   Quen", "Dor   Fim"]
+
+
+@needs_ocr
+def test_words_of_one_label_are_joined_at_its_tick():
+    centres = [200, 400, 600, 800]
+    measurements = Measurements(_level_labels(TWO_WORDS, centres, centres))
+    assert len(measurements.get("label_blobs")["x"]) == 2 * len(TWO_WORDS)  # found apart
+    assert [" ".join(t.text.split()) for t in measurements.get("x_label_texts")] == [" ".join(w.split()) for w in TWO_WORDS]
+
+
+@needs_ocr
+def test_labels_between_their_ticks_are_not_regrouped():
+    # ticks at the category boundaries, labels midway (a layout some spreadsheet charts use): words
+    # nearest one tick belong to two labels, so no label may be joined across a boundary
+    centres = [200, 400, 600, 800]
+    measurements = Measurements(_level_labels(TWO_WORDS, centres, [100, 300, 500, 700, 900]))
+    texts = [t.text for t in measurements.get("x_label_texts")]
+    assert texts == [word for label in TWO_WORDS for word in label.split()]
+
+
+@needs_ocr
+@pytest.mark.parametrize("labels, flagged", [
+    (["Kalovelmirebo", "Satorulquniren", "Dragopimfenul", "Ulkasabortovel", "Mirebsatorkalo"], True),
+    (["September", "October", "November", "December", "January"], False),
+])
+def test_line_labels_cut_off_by_the_edge_still_show_words(labels, flagged):
+    # long upright labels with little room below the axes: matplotlib cuts their starts off at the
+    # image edge; what is left of invented names ends no month name, what is left of month names may
+    figure = _line_figure(_line(labels, 90, bottom=0.12))
+    ticks = Measurements(figure).get("axes").x.ticks
+    assert sum(t.clipped for t in ticks) >= 3
+    found, unmeasured = _found(figure)
+    assert ("line-on-categories" in found) is flagged
+
+
+def test_tick_positions_as_numpy_scalars_pair_with_labels():
+    # Tick marks come from numpy; a label far from every tick must not be compared with them
+    # elementwise (a figure of the sample corpus failed so). Geometry invented.
+    from corpusaudit.measure.axes import LabelBlob, labels_per_tick
+
+    def blob(x0, x1):
+        return LabelBlob(bbox=(x0, 100.0, x1, 112.0), angle=0.0, glyphs=2, mask=np.ones((12, int(x1 - x0)), bool),
+                         glyph_ids=np.ones((12, int(x1 - x0)), np.int32), clipped=False)
+
+    marks = [np.float64(50.0), np.float64(150.0), np.float64(250.0)]
+    found = labels_per_tick((blob(40, 60), blob(140, 160), blob(330, 350)), 0.0, marks, "x")
+    assert [b.bbox[0] for b in found] == [40, 140, 330]

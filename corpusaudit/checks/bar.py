@@ -163,19 +163,18 @@ def _raster_category_labels(ctx: CheckContext, chart, positions: list[float]) ->
     of the whole set when it has none itself. (None, False) when labels are merged or missing.
     """
     side = "x" if chart.orientation == "vertical" else "y"
-    blobs = ctx.measure("label_blobs")[side]
-    if len(blobs) != len(positions):
+    ticks = ctx.measure(f"{side}_label_texts")
+    if len(ticks) != len(positions):
         return None, False
     spacing = min(b - a for a, b in zip(positions, positions[1:]))
     along = 0 if side == "x" else 1
-    for blob, position in zip(blobs, positions):
-        if not blob.bbox[along] - 0.5 * spacing <= position <= blob.bbox[along + 2] + 0.5 * spacing:
+    for tick, position in zip(ticks, positions):
+        if not tick.bbox[along] - 0.5 * spacing <= position <= tick.bbox[along + 2] + 0.5 * spacing:
             return None, False
-    texts = ctx.measure(f"{side}_label_texts")
-    labels = [tick.text.strip() for tick, blob in zip(texts, blobs) if not blob.clipped]
+    labels = [tick.text.strip() for tick in ticks if not tick.clipped]
     if len(set(labels)) != len(labels):
         return None, False
-    return labels, len(labels) == len(blobs)
+    return labels, len(labels) == len(ticks)
 
 
 @rule(

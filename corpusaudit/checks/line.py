@@ -6,7 +6,7 @@ from __future__ import annotations
 import numpy as np
 
 from corpusaudit.checks.registry import CheckContext, rule
-from corpusaudit.measure.axes import is_ordered_vocabulary
+from corpusaudit.measure.axes import could_end_ordered_label, is_ordered_vocabulary, ordinal_key
 from corpusaudit.measure.shapes import is_vector
 from corpusaudit.measure.text import parse_number
 from corpusaudit.model import Draft, MeasurementUnavailable, Option, Outcome
@@ -53,32 +53,50 @@ def line_series_count(ctx: CheckContext) -> Outcome:
         them.""",
     better="""Bars or dots for the categories.""",
     limitations="""Relies on the x tick labels being words rather than numbers or dates; ordinal categories (low,
-        medium, high) may be legitimate. On rasters, rotated labels or labels that text recognition returns as
-        fragments or duplicates leave it unmeasured.""",
+        medium, high) may be legitimate. On rasters each label is read turned level; a label cut off by the image
+        edge counts only when what is left of it ends no number, month or weekday name, and labels that text
+        recognition returns as fragments, duplicates, or partly as numbers or months leave it unmeasured.""",
 )
 def line_on_categories(ctx: CheckContext) -> Outcome:
     axis = ctx.measure("axes").x
     labels = axis.labels
-    if axis.kind != "categorical" or len(labels) < ctx.options["min_labels"] or is_ordered_vocabulary(labels):
+    if axis.kind != "categorical" or len(labels) < ctx.options["min_labels"]:
         return Outcome()
-    if not is_vector(ctx.figure) and not _labels_read(ctx, labels):
-        return Outcome(unmeasured=True, reason="x tick labels not read reliably")
-    region = tuple(np.array([t.bbox for t in axis.ticks]).min(axis=0)[:2]) + tuple(np.array([t.bbox for t in axis.ticks]).max(axis=0)[2:])
-    return Outcome(findings=(Draft(message=f"line drawn across {len(labels)} unordered categories ({', '.join(labels[:4])}...)",
+    if is_vector(ctx.figure):
+        if is_ordered_vocabulary(labels):
+            return Outcome()
+        words = labels
+    else:
+        whole = [t.text for t in axis.ticks if not t.clipped]
+        if not _labels_read(whole):
+            return Outcome(unmeasured=True, reason="x tick labels not read reliably")
+        if whole and is_ordered_vocabulary(whole):
+            return Outcome()
+        if any(ordinal_key(label) is not None for label in whole):
+            # Some labels are numbers or months and others not: a misread of an ordered scale.
+            return Outcome(unmeasured=True, reason="x tick labels read only in part")
+        # A label cut off by the image's edge has lost its start; what is left still shows it is
+        # no number or month when no number or month name ends that way.
+        words = whole + [t.text for t in axis.ticks if t.clipped and _no_ordered_ending(t.text)]
+        if len(words) < ctx.options["min_labels"]:
+            return Outcome(unmeasured=True, reason="x tick labels cut off by the image edge")
+    boxes = np.array([t.bbox for t in axis.ticks])
+    region = tuple(boxes.min(axis=0)[:2]) + tuple(boxes.max(axis=0)[2:])
+    return Outcome(findings=(Draft(message=f"line drawn across {len(labels)} unordered categories ({', '.join(words[:4])}...)",
                                    value=str(len(labels)), threshold="ordered x values", region=region),))
 
 
-MAX_READABLE_ROTATION = 10.0  # degrees: text recognition reads labels line by line, horizontally
+def _no_ordered_ending(fragment: str) -> bool:
+    """Whether the end of a cut-off label rules out a number or a month or weekday name:
+    letters only (an abbreviation's full stop aside), with its first character (at the cut,
+    perhaps misread) left out."""
+    rest = fragment.strip().rstrip(".")[1:]
+    return len(rest) >= 2 and rest.isalpha() and not could_end_ordered_label(rest)
 
 
-def _labels_read(ctx: CheckContext, labels: list[str]) -> bool:
-    """Whether recognised x labels can be trusted: horizontal (rotated labels come back as
-    fragments), and each a number or a word of letters, with no label read twice."""
-    try:
-        if ctx.measure("tick_label_angle").angle > MAX_READABLE_ROTATION:
-            return False
-    except MeasurementUnavailable:
-        pass
+def _labels_read(labels: list[str]) -> bool:
+    """Whether recognised x labels can be trusted: each a number or a word of letters, with
+    no label read twice."""
     if len(set(labels)) < len(labels):
         return False
     return all(parse_number(label) is not None or _word_like(label) for label in labels)
@@ -101,16 +119,18 @@ def _word_like(text: str) -> bool:
     problem="""Samples from 1990, 2000, 2015 and 2020 placed at equal spacing, so the change per year is
         distorted.""",
     better="""A numeric year axis on which 1990-2000 is twice as long as 2015-2020.""",
-    limitations="""Needs numeric x tick labels; text recognition errors on rasters can hide the problem, and rotated
-        or fragmentary raster labels leave it unmeasured.""",
+    limitations="""Needs numeric x tick labels; text recognition errors on rasters can hide the problem, and
+        fragmentary raster labels or labels cut off by the image edge leave it unmeasured.""",
 )
 def line_uneven_axis(ctx: CheckContext) -> Outcome:
     axis = ctx.measure("axes").x
     ticks = [t for t in axis.ticks if t.value is not None]
-    if not is_vector(ctx.figure) and not _labels_read(ctx, axis.labels):
+    if not is_vector(ctx.figure) and not _labels_read(axis.labels):
         return Outcome(unmeasured=True, reason="x tick labels not read reliably")
     if len(ticks) < 3 or len(ticks) < len(axis.ticks):
         return Outcome()
+    if any(t.clipped for t in ticks):  # a number cut off by the image's edge has lost its first digits
+        return Outcome(unmeasured=True, reason="x tick labels cut off by the image edge")
     pixels = np.diff([t.pixel for t in ticks])
     values = np.diff([t.value for t in ticks])
     if not (np.all(values > 0) or np.all(values < 0)) or np.any(pixels <= 0):

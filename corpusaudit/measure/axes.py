@@ -8,7 +8,7 @@ then evaluated at the plot-area edges. So a truncated axis is measured, not gues
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -17,7 +17,7 @@ from corpusaudit.measure.shapes import (
     axis_aligned_segment, background_rgb, bbox_area, colour_distance, component_stats, ink_mask,
     is_neutral, is_vector, require_pixels, thin_lines,
 )
-from corpusaudit.measure.text import merge_words_into_lines, ocr_words, parse_number
+from corpusaudit.measure.text import merge_words_into_lines, ocr_line, ocr_words, parse_number
 from corpusaudit.model import BBox, Figure, MeasurementUnavailable, TextSpan
 
 # Ink for tick marks: clearly darker than a tinted panel (ggplot's grey is 45 levels from white).
@@ -33,6 +33,7 @@ class Tick:
     value: float | None  # the number the label states, if it is one
     angle: float  # label direction, degrees counter-clockwise
     bbox: BBox
+    clipped: bool = False  # the label reaches the image's edge: its text may be incomplete
 
 
 @dataclass(frozen=True)
@@ -87,19 +88,31 @@ def _vector_plot_area(figure: Figure) -> BBox:
     raise MeasurementUnavailable("no plot area (no axes frame or axis lines found)")
 
 
+def _light_tint(rgb: np.ndarray, background: np.ndarray) -> np.ndarray:
+    """Light neutral pixels that are not page colour: a bar or an area of data colour is not a panel."""
+    import cv2
+
+    red, green, blue = cv2.split(rgb)  # OpenCV's per-pixel minimum and maximum: numpy's over the channel axis is slow
+    low, high = cv2.min(cv2.min(red, green), blue), cv2.max(cv2.max(red, green), blue)
+    return (colour_distance(rgb, background) > 6) & (low >= 180) & (cv2.subtract(high, low) <= 24)
+
+
 def _filled_panel(rgb: np.ndarray, background: np.ndarray) -> BBox | None:
     """A flat light-neutral panel that differs from the page (ggplot-like styles), or None.
 
     The panel is the modal light neutral colour that is not page, closed over the grid lines drawn on
     it (white in these styles, so they cut the panel into cells). It must be a rectangle
     (its rim mostly panel colour) and hold something (grid lines, data: holes in the panel
-    colour), so a large plain bar is not taken for it.
+    colour), so a large plain bar is not taken for it. Page colour inside it is only thin grid
+    lines, so the halo of faint pixels that JPEG leaves round lines on a white page is not one.
     """
     import cv2
 
     height, width = rgb.shape[:2]
-    # Light neutral tints only: a bar or an area of data colour is not a panel.
-    tint = (colour_distance(rgb, background) > 6) & (rgb.min(axis=2) >= 180) & (np.ptp(rgb, axis=2) <= 24)
+    # Every third pixel first: most figures have almost no tint and are ruled out at a ninth of the cost.
+    if _light_tint(np.ascontiguousarray(rgb[::3, ::3]), background).mean() < 0.025:
+        return None
+    tint = _light_tint(rgb, background)
     if tint.sum() < 0.05 * width * height:
         return None
     pixels = rgb[tint].astype(np.int32)
@@ -118,7 +131,8 @@ def _filled_panel(rgb: np.ndarray, background: np.ndarray) -> BBox | None:
     holes = 1.0 - inside.mean()
     box = closed[y:y + h, x:x + w]
     rim = np.concatenate([box[1], box[-2], box[:, 1], box[:, -2]])  # a panel is a rectangle: its rim is panel
-    if holes < 0.02 or rim.mean() < 0.6 or best[5] < 0.2 * w * h:
+    page = (colour_distance(rgb[y:y + h, x:x + w], background) < 8).mean()
+    if holes < 0.02 or rim.mean() < 0.6 or best[5] < 0.2 * w * h or page > 0.5 * inside.mean():
         return None
     return (float(x), float(y), float(x + w), float(y + h))
 
@@ -180,8 +194,7 @@ def _vector_tick_marks(figure: Figure, plot: BBox) -> dict[str, list[float]]:
     return result
 
 
-def _raster_tick_marks(rgb: np.ndarray, plot: BBox) -> dict[str, list[float]]:
-    ink = ink_mask(rgb, threshold=TICK_INK)
+def _raster_tick_marks(ink: np.ndarray, plot: BBox) -> dict[str, list[float]]:
     height, width = ink.shape
     x0, y0, x1, y1 = (int(round(v)) for v in plot)
     result = {}
@@ -195,8 +208,25 @@ def _raster_tick_marks(rgb: np.ndarray, plot: BBox) -> dict[str, list[float]]:
         column = strip.sum(axis=0) >= 3  # a tick crosses at least 3 pixels of the band
         edges = np.flatnonzero(np.diff(np.concatenate([[0], column.astype(np.int8), [0]])))
         runs = [(start, stop) for start, stop in zip(edges[::2], edges[1::2]) if stop - start <= 5]
-        result[side] = [offset + (start + stop - 1) / 2.0 for start, stop in runs]
+        positions = [offset + (start + stop - 1) / 2.0 for start, stop in runs]
+        lengths = [_mark_length(ink, plot, side, position) for position in positions]
+        # Major ticks only, as on vector figures: minor ticks are shorter and unlabelled.
+        result[side] = [p for p, length in zip(positions, lengths) if length >= 0.8 * max(lengths)]
     return result
+
+
+def _mark_length(ink: np.ndarray, plot: BBox, side: str, position: float) -> int:
+    """How far a tick mark reaches out from the plot frame: its run of ink (pixels)."""
+    if side == "x":
+        line = ink[min(ink.shape[0], int(round(plot[3])) + 1):int(round(plot[3])) + 41, int(round(position))]
+    else:
+        x0 = int(round(plot[0]))
+        line = ink[int(round(position)), max(0, x0 - 41):max(0, x0 - 1)][::-1]
+    if not line.any():
+        return 0
+    start = int(np.argmax(line))
+    rest = line[start:]
+    return int(np.argmin(rest)) if not rest.all() else len(rest)
 
 
 @measurement("tick_marks")
@@ -205,7 +235,19 @@ def tick_marks(figure: Figure, measurements) -> dict[str, list[float]]:
     plot = measurements.get("plot_area")
     if is_vector(figure):
         return _vector_tick_marks(figure, plot)
-    return _raster_tick_marks(require_pixels(figure), plot)
+    return _raster_tick_marks(measurements.get("tick_ink"), plot)
+
+
+@measurement("tick_ink")
+def tick_ink(figure: Figure, measurements) -> np.ndarray:
+    """Raster pixels dark enough for tick marks and frame lines (TICK_INK from the background)."""
+    return ink_mask(require_pixels(figure), threshold=TICK_INK)
+
+
+@measurement("tick_reach")
+def tick_reach(figure: Figure, measurements) -> int:
+    """How far the raster tick marks reach out of the plot frame (pixels), so label strips skip them."""
+    return _tick_length(measurements.get("tick_ink"), measurements.get("plot_area"), measurements.get("tick_marks"))
 
 
 # ------------------------------------------------------------------ tick labels
@@ -263,19 +305,22 @@ def _robust_fit(pixels: np.ndarray, values: np.ndarray) -> tuple[float, float] |
     return None
 
 
-def _build_axis(side: str, labels: list[TextSpan], marks: list[float], extent: tuple[float, float]) -> Axis:
-    if side == "x":
-        positions = [(s.bbox[0] + s.bbox[2]) / 2 for s in labels]
-    else:
-        positions = [(s.bbox[1] + s.bbox[3]) / 2 for s in labels]
+def _span_tick(span: TextSpan, side: str) -> Tick:
+    along = 0 if side == "x" else 1
+    return Tick(pixel=(span.bbox[along] + span.bbox[along + 2]) / 2, text=span.text, value=_number(span),
+                angle=span.angle, bbox=span.bbox)
+
+
+def _build_axis(side: str, labels: list[Tick], marks: list[float], extent: tuple[float, float]) -> Axis:
+    """An axis from its labels in order (pixel: where each label is), moved onto the tick marks."""
+    positions = [t.pixel for t in labels]
     if marks and len(marks) == len(labels):  # one label per major tick: pair them in order
         positions = sorted(marks)
     elif marks:
         spacing = float(np.median(np.diff(marks))) if len(marks) > 1 else float("inf")
         positions = [min(marks, key=lambda m: abs(m - p)) if min(abs(m - p) for m in marks) < 0.4 * spacing else p
                      for p in positions]
-    ticks = tuple(Tick(pixel=float(p), text=s.text, value=_number(s), angle=s.angle, bbox=s.bbox)
-                  for p, s in zip(positions, labels))
+    ticks = tuple(replace(t, pixel=float(p)) for p, t in zip(positions, labels))
     numeric = [t for t in ticks if t.value is not None]
     fit = None
     if ticks and len(numeric) >= 2 and len(numeric) >= 0.8 * len(ticks):
@@ -301,26 +346,39 @@ def _tick_length(ink: np.ndarray, plot: BBox, marks: dict[str, list[float]]) -> 
     return max(lengths, default=0) + 3
 
 
-def _raster_label_spans(rgb: np.ndarray, plot: BBox, marks: dict[str, list[float]]) -> list[TextSpan]:
+def _raster_label_spans(rgb: np.ndarray, plot: BBox, reach: int, side: str) -> list[TextSpan]:
+    """Tick labels of one axis read by OCR as one strip (words joined into lines by their gaps)."""
     height, width = rgb.shape[:2]
-    reach = _tick_length(ink_mask(rgb, threshold=TICK_INK), plot, marks)
-    pad_y, pad_x = 0.06 * height, 0.06 * width
-    left = ocr_words(rgb, (0, plot[1] - pad_y, plot[0] - reach, plot[3] + pad_y), psm=6)
-    below = ocr_words(rgb, (plot[0] - pad_x, plot[3] + reach, plot[2] + pad_x, min(height, plot[3] + 0.25 * height)), psm=6)
-    return merge_words_into_lines(left) + merge_words_into_lines(below)
+    if side == "y":
+        pad = 0.06 * height
+        words = ocr_words(rgb, (0, plot[1] - pad, plot[0] - reach, plot[3] + pad), psm=6)
+    else:
+        pad = 0.06 * width
+        words = ocr_words(rgb, (plot[0] - pad, plot[3] + reach, plot[2] + pad, min(height, plot[3] + 0.25 * height)), psm=6)
+    return _select_labels(merge_words_into_lines(words), plot, side, 1.0)
 
 
 @measurement("axes")
 def axes(figure: Figure, measurements) -> Axes:
-    """Plot area with both axes: tick labels, their numbers and the linear value scale."""
+    """Plot area with both axes: tick labels, their numbers and the linear value scale.
+
+    Raster x labels are found from their ink, one per tick, and read one by one turned level
+    (x_label_texts): read as a strip, OCR joins neighbouring labels or splits one, and reads
+    rotated ones as fragments. Raster y labels (level numbers in a column) are read as a strip.
+    """
     plot = measurements.get("plot_area")
     marks = measurements.get("tick_marks")
     if is_vector(figure):
         spans, scale = figure.vector.texts, figure.vector.scale
+        x_labels = [_span_tick(s, "x") for s in _select_labels(spans, plot, "x", scale)]
+        y_labels = [_span_tick(s, "y") for s in _select_labels(spans, plot, "y", scale)]
     else:
-        spans, scale = _raster_label_spans(require_pixels(figure), plot, marks), 1.0
-    x_labels = _select_labels(spans, plot, "x", scale)
-    y_labels = _select_labels(spans, plot, "y", scale)
+        rgb = require_pixels(figure)
+        x_labels = list(measurements.get("x_label_texts"))
+        reach = measurements.get("tick_reach")
+        if not x_labels:
+            x_labels = [_span_tick(s, "x") for s in _raster_label_spans(rgb, plot, reach, "x")]
+        y_labels = [_span_tick(s, "y") for s in _raster_label_spans(rgb, plot, reach, "y")]
     return Axes(plot=plot,
                 x=_build_axis("x", x_labels, marks["x"], (plot[0], plot[2])),
                 y=_build_axis("y", y_labels, marks["y"], (plot[1], plot[3])))
@@ -345,7 +403,7 @@ class LabelBlob:
     glyphs: int  # glyph components in the label
     mask: np.ndarray  # the label's ink inside bbox (bool), so a neighbour's ink can be left out
     glyph_ids: np.ndarray  # inside bbox: a number per glyph of text size, 0 elsewhere (dots left out)
-    clipped: bool  # touches the image edge: the label may be cut off, its text incomplete
+    clipped: bool  # may run on past the image's edge (or the strip read): its text may be incomplete
 
 
 MIN_ELONGATION = 2.0  # ink spread along / across: text lines are long, single glyphs are not
@@ -407,22 +465,53 @@ def _label_strip(shape: tuple[int, int], plot: BBox, reach: int, side: str) -> t
             min(height, int(plot[3] + 0.04 * height)))
 
 
-def _touches_edge(bx: int, by: int, bw: int, bh: int, origin: tuple[int, int], shape: tuple[int, int]) -> bool:
-    x, y = origin[0] + bx, origin[1] + by
-    return x <= 0 or y <= 0 or x + bw >= shape[1] or y + bh >= shape[0]
+def _glyph_gap(glyph_ids: np.ndarray, angle: float | None) -> float | None:
+    """The widest gap between consecutive glyphs of one label along its reading direction (pixels)."""
+    ys, xs = np.nonzero(glyph_ids)
+    owner = glyph_ids[ys, xs]
+    found = np.unique(owner)
+    if len(found) < 2:
+        return None
+    theta = np.radians(angle or 0.0)
+    along = xs * np.cos(theta) - ys * np.sin(theta)  # image rows run down
+    spans = sorted((along[owner == g].min(), along[owner == g].max()) for g in found)
+    ends = np.maximum.accumulate([end for _, end in spans])
+    return float(max(0.0, max(start - end for (start, _), end in zip(spans[1:], ends[:-1]))))
 
 
-def raster_label_blobs(rgb: np.ndarray, plot: BBox, marks: dict[str, list[float]], side: str) -> tuple[LabelBlob, ...]:
-    """Tick labels beside one axis as ink blobs with their reading direction, in order along the axis."""
+def _cut_off(ys: np.ndarray, xs: np.ndarray, angle: float | None, gap: float, shape: tuple[int, int], side: str) -> bool:
+    """Whether a label's ink (strip coordinates) may run on past the strip's edge, which is the
+    image's edge or the strip's limit: it comes within a pixel of an edge (cut across), or
+    within one glyph gap of it along its reading direction, where a next glyph would start."""
+    theta = np.radians(angle or 0.0)
+    run_x, run_y = abs(np.cos(theta)), abs(np.sin(theta))
+    height, width = shape
+    edges = {"top": (ys.min(), run_y), "bottom": (height - 1 - ys.max(), run_y),
+             "left": (xs.min(), run_x), "right": (width - 1 - xs.max(), run_x)}
+    del edges["top" if side == "x" else "right"]  # the edge facing the axis: labels start beyond it
+    return any(distance <= 1 + gap * run for distance, run in edges.values())
+
+
+def raster_label_blobs(rgb: np.ndarray, plot: BBox, reach: int, side: str) -> tuple[LabelBlob, ...]:
+    """Tick labels beside one axis as ink blobs with their reading direction, in order along the axis.
+
+    reach: how far the tick marks stand out of the frame; the labels lie beyond it.
+    """
     import cv2
 
-    reach = _tick_length(ink_mask(rgb, threshold=TICK_INK), plot, marks)
     x0, y0, x1, y1 = _label_strip(rgb.shape[:2], plot, reach, side)
     if x1 - x0 < 5 or y1 - y0 < 5:
         return ()
     ink = ink_mask(rgb[y0:y1, x0:x1], background_rgb(rgb), threshold=80.0)
     glyph_labels, glyphs, centres = component_stats(ink, min_area=4)
-    glyphs_kept = glyphs[:, 4] <= 0.3 * rgb.shape[0]  # taller marks are shapes (a legend, a bar), not text
+    # Marks crossing the strip's edge on the axis side come from above it (the other axis's
+    # labels at the corner, long tick marks): tick labels start clear of the ticks.
+    facing = glyph_labels[0] if side == "x" else glyph_labels[:, -1]
+    crossing = np.zeros(glyph_labels.max() + 1, bool)
+    crossing[facing[facing > 0]] = True
+    if crossing.any():
+        ink &= ~crossing[glyph_labels]
+    glyphs_kept = (glyphs[:, 4] <= 0.3 * rgb.shape[0]) & ~crossing[glyphs[:, 0]]  # taller: shapes, not text
     glyphs, centres = glyphs[glyphs_kept], centres[glyphs_kept]
     if len(glyphs) == 0:
         return ()
@@ -449,15 +538,24 @@ def raster_label_blobs(rgb: np.ndarray, plot: BBox, marks: dict[str, list[float]
     stats = stats[texty & beside]
     if len(stats) == 0:
         return ()
-    blobs = []
+    found = []
     for index, bx, by, bw, bh, _ in _label_row(stats, side, glyph_height):
         mask = (labels[by:by + bh, bx:bx + bw] == index) & ink[by:by + bh, bx:bx + bw]
         members = (owner == index) & large
         ids = glyph_labels[by:by + bh, bx:bx + bw] * mask
         ids[~np.isin(ids, glyphs[members, 0])] = 0
-        blobs.append(LabelBlob(bbox=(float(x0 + bx), float(y0 + by), float(x0 + bx + bw), float(y0 + by + bh)),
-                               angle=_label_angle(mask, centres[members]), glyphs=int(members.sum()), mask=mask,
-                               glyph_ids=ids, clipped=_touches_edge(bx, by, bw, bh, (x0, y0), rgb.shape[:2])))
+        found.append((bx, by, mask, ids, _label_angle(mask, centres[members]), int(members.sum())))
+    gaps = [g for g in (_glyph_gap(ids, angle) for _, _, _, ids, angle, _ in found) if g is not None]
+    # A label's glyphs lie closer than the merging radius; the widest gap seen within labels of the row is
+    # how far off the next glyph of a label running past the edge would start.
+    gap = min(max(gaps, default=GLYPH_GAP_SHARE * glyph_height), GLYPH_GAP_SHARE * glyph_height)
+    blobs = []
+    for bx, by, mask, ids, angle, count in found:
+        ys, xs = np.nonzero(mask)
+        left, top = float(x0 + bx), float(y0 + by)
+        blobs.append(LabelBlob(bbox=(left, top, left + mask.shape[1], top + mask.shape[0]),
+                               angle=angle, glyphs=count, mask=mask, glyph_ids=ids,
+                               clipped=_cut_off(ys + by, xs + bx, angle, gap, ink.shape, side)))
     along = 0 if side == "x" else 1
     return tuple(sorted(blobs, key=lambda b: b.bbox[along] + b.bbox[along + 2]))
 
@@ -465,38 +563,35 @@ def raster_label_blobs(rgb: np.ndarray, plot: BBox, marks: dict[str, list[float]
 @measurement("label_blobs")
 def label_blobs(figure: Figure, measurements) -> dict[str, tuple[LabelBlob, ...]]:
     """Raster tick labels found from their ink, per axis: {'x': (...), 'y': (...)}."""
-    rgb = require_pixels(figure)
-    plot = measurements.get("plot_area")
-    marks = measurements.get("tick_marks")
-    return {side: raster_label_blobs(rgb, plot, marks, side) for side in ("x", "y")}
+    rgb, plot, reach = require_pixels(figure), measurements.get("plot_area"), measurements.get("tick_reach")
+    return {side: raster_label_blobs(rgb, plot, reach, side) for side in ("x", "y")}
 
 
 def _rectangle_angle(blobs: tuple[LabelBlob, ...]) -> float | None:
     """The angle at which the labels' bounding rectangles, turned to it, have the least total area.
 
     Of the two perpendicular answers, the reading direction is the one along which the labels
-    are long. None when no label is longer than tall.
+    are long. Only labels of two glyphs or more show a direction (a lone '1' is tall, yet may
+    stand in a level row). None when no label shows one.
     """
-    point_sets = []
+    import cv2
+
+    hulls = []  # a rectangle's extent along any direction is set by the convex hull of the ink
     for blob in blobs:
         ys, xs = np.nonzero(blob.mask)
-        if len(xs) >= 8:
-            point_sets.append(np.column_stack([xs, -ys]).astype(float))
-    if not point_sets or all(b.angle is None for b in blobs):
+        if len(xs) >= 8 and blob.glyphs >= 2:
+            hull = cv2.convexHull(np.column_stack([xs, -ys]).astype(np.float32))
+            hulls.append(hull.reshape(-1, 2).astype(float))
+    if not hulls or all(b.angle is None for b in blobs):
         return None
-
-    def extents(theta: float) -> np.ndarray:
-        t = np.radians(theta)
-        along, across = np.array([np.cos(t), np.sin(t)]), np.array([-np.sin(t), np.cos(t)])
-        return np.array([(np.ptp(p @ along), np.ptp(p @ across)) for p in point_sets])
-
-    def total_area(theta: float) -> float:
-        sizes = extents(theta)
-        return float((sizes[:, 0] * sizes[:, 1]).sum())
-
-    best = float(min(np.arange(0.0, 90.0, 1.0), key=total_area))
-    sizes = extents(best)
-    return _fold(best if sizes[:, 0].sum() >= sizes[:, 1].sum() else best + 90.0)
+    angles = np.arange(0.0, 90.0, 1.0)
+    radians = np.radians(angles)
+    along = np.stack([np.cos(radians), np.sin(radians)])
+    across = np.stack([-np.sin(radians), np.cos(radians)])
+    lengths = np.array([np.ptp(h @ along, axis=0) for h in hulls])  # labels x angles
+    widths = np.array([np.ptp(h @ across, axis=0) for h in hulls])
+    best = int(np.argmin((lengths * widths).sum(axis=0)))
+    return _fold(angles[best] if lengths[:, best].sum() >= widths[:, best].sum() else angles[best] + 90.0)
 
 
 def common_label_angle(blobs: tuple[LabelBlob, ...]) -> float | None:
@@ -508,40 +603,43 @@ def common_label_angle(blobs: tuple[LabelBlob, ...]) -> float | None:
     BASELINE_SEARCH of it, the angle at which the glyphs of each label stand on one
     baseline: their lowest points, in the frame turned to that angle, deviate least from
     the label's median, the third of largest deviations left out (so the descenders of g, p,
-    y do not tilt it). None when no label is longer than tall.
+    y do not tilt it). None when no label shows a direction.
     """
     coarse = _rectangle_angle(blobs)
     if coarse is None:
         return None
-    words = []
+    steps = np.arange(coarse - BASELINE_SEARCH, coarse + BASELINE_SEARCH + 0.01, 0.25)
+    radians = np.radians(steps)
+    across = np.stack([-np.sin(radians), np.cos(radians)])
+    spread = np.zeros(len(steps))
+    words = 0
     for blob in blobs:
-        ids = blob.glyph_ids
-        found = np.unique(ids[ids > 0])
-        if len(found) >= 3:  # two glyphs ('Q1': the tail of Q) may stand on no common line
-            ys, xs = np.nonzero(ids)
-            words.append((np.column_stack([xs, -ys]).astype(float), ids[ys, xs], found))
+        ys, xs = np.nonzero(blob.glyph_ids)
+        owner = blob.glyph_ids[ys, xs]
+        order = np.argsort(owner, kind="stable")
+        owner = owner[order]
+        starts = np.flatnonzero(np.concatenate([[True], owner[1:] != owner[:-1]]))
+        if len(starts) < 3:  # two glyphs ('Q1': the tail of Q) may stand on no common line
+            continue
+        heights = np.column_stack([xs[order], -ys[order]]).astype(float) @ across  # pixels x angles
+        bottoms = np.minimum.reduceat(heights, starts, axis=0)  # glyphs x angles
+        deviations = np.sort(np.abs(bottoms - np.median(bottoms, axis=0)), axis=0)
+        spread += deviations[:len(starts) - len(starts) // 3].sum(axis=0)  # descenders left out
+        words += 1
     if not words:
         return coarse
-
-    def spread(theta: float) -> float:
-        t = np.radians(theta)
-        across = np.array([-np.sin(t), np.cos(t)])
-        total = 0.0
-        for points, owner, found in words:
-            height = points @ across
-            bottoms = np.array([height[owner == g].min() for g in found])
-            deviations = np.sort(np.abs(bottoms - np.median(bottoms)))
-            total += float(deviations[:len(deviations) - len(deviations) // 3].sum())  # descenders left out
-        return total
-
-    steps = np.arange(coarse - BASELINE_SEARCH, coarse + BASELINE_SEARCH + 0.01, 0.25)
-    return _fold(float(min(steps, key=spread)))
+    return _fold(float(steps[int(np.argmin(spread))]))
 
 
-def _raster_label_angle(blobs: tuple[LabelBlob, ...]) -> LabelAngle:
+@measurement("label_directions")
+def label_directions(figure: Figure, measurements) -> dict[str, float | None]:
+    """common_label_angle of each raster axis's label blobs, found once for the angle rules and OCR."""
+    return {side: common_label_angle(blobs) for side, blobs in measurements.get("label_blobs").items()}
+
+
+def _raster_label_angle(blobs: tuple[LabelBlob, ...], angle: float | None) -> LabelAngle:
     if not blobs:
         raise MeasurementUnavailable("no tick labels found beside the axis")
-    angle = common_label_angle(blobs)
     if angle is None:
         # Single glyphs ('A', '5') show no direction; upright glyphs are at most as wide as tall.
         if np.median([(b.bbox[2] - b.bbox[0]) / (b.bbox[3] - b.bbox[1]) for b in blobs]) > 1.0:
@@ -568,7 +666,7 @@ def tick_label_angle(figure: Figure, measurements) -> LabelAngle:
     plot = measurements.get("plot_area")
     if is_vector(figure):
         return _vector_label_angle(figure, plot, "x")
-    return _raster_label_angle(measurements.get("label_blobs")["x"])
+    return _raster_label_angle(measurements.get("label_blobs")["x"], measurements.get("label_directions")["x"])
 
 
 @measurement("y_tick_label_angle")
@@ -577,7 +675,7 @@ def y_tick_label_angle(figure: Figure, measurements) -> LabelAngle:
     plot = measurements.get("plot_area")
     if is_vector(figure):
         return _vector_label_angle(figure, plot, "y")
-    return _raster_label_angle(measurements.get("label_blobs")["y"])
+    return _raster_label_angle(measurements.get("label_blobs")["y"], measurements.get("label_directions")["y"])
 
 
 # ------------------------------------------------------------------ label text (rasters)
@@ -602,36 +700,162 @@ def _turned_label(rgb: np.ndarray, blob: LabelBlob, angle: float, background: np
     return cv2.warpAffine(crop, turn, size, flags=cv2.INTER_CUBIC, borderValue=colour)
 
 
-def _read_turned(image: np.ndarray) -> str:
-    words = ocr_words(image, (0, 0, image.shape[1], image.shape[0]), psm=7)
-    return " ".join(w.text for w in sorted(words, key=lambda w: w.bbox[0]))
-
-
 def _looks_like_label(text: str) -> bool:
     return bool(re.fullmatch(r"[A-Za-z0-9][A-Za-z0-9 .,'%&()/-]*", text)) and sum(c.isalnum() for c in text) >= 1
 
 
-def read_label_blobs(rgb: np.ndarray, blobs: tuple[LabelBlob, ...], side: str) -> tuple[Tick, ...]:
-    """Each label's text, read by OCR with the label turned to read horizontally.
+# OCR reads a tick mark's end or a speck beside a label as a quote mark.
+_STRAY_QUOTES = "\"`\u201c\u201d\u201e\u2018\u2019"
 
-    The whole row turns by its common angle; a label that does not read as a word turned
-    that way is tried upside down (vertical text may run either way). Only the labels are
-    read, never the whole figure: recognition is the dearest step of the audit.
+
+def _read_line(image: np.ndarray) -> tuple[str, float]:
+    text, confidence = ocr_line(image)
+    return text.strip(_STRAY_QUOTES).strip(), confidence
+
+
+NEAR_VERTICAL = 75.0  # degrees: text this steep runs up the page or down it, both common
+
+
+def _read_label(rgb: np.ndarray, blob: LabelBlob, angle: float, background: np.ndarray) -> str:
+    """The text of one label, turned level by the row's angle and read as one line.
+
+    Labels of a row read left to right, so a slanted row has one reading direction; steep
+    text may run up or down, so both turns are read and the one that reads as a label with
+    the higher confidence is kept. A slanted label that does not read as one is tried upside
+    down too.
     """
-    angle = common_label_angle(blobs)
+    text, confidence = _read_line(_turned_label(rgb, blob, angle, background))
+    if abs(angle) < NEAR_VERTICAL and _looks_like_label(text):
+        return text
+    other, other_confidence = _read_line(_turned_label(rgb, blob, angle - 180.0, background))
+    if (_looks_like_label(other), other_confidence) > (_looks_like_label(text), confidence):
+        return other
+    return text
+
+
+def _merge_blobs(blobs: list[LabelBlob]) -> LabelBlob:
+    """Blobs of one label (its words, found apart) as one blob."""
+    if len(blobs) == 1:
+        return blobs[0]
+    x0, y0 = int(min(b.bbox[0] for b in blobs)), int(min(b.bbox[1] for b in blobs))
+    x1, y1 = int(max(b.bbox[2] for b in blobs)), int(max(b.bbox[3] for b in blobs))
+    mask = np.zeros((y1 - y0, x1 - x0), bool)
+    ids = np.zeros((y1 - y0, x1 - x0), int)
+    for blob in blobs:
+        bx, by = int(blob.bbox[0]) - x0, int(blob.bbox[1]) - y0
+        h, w = blob.mask.shape
+        mask[by:by + h, bx:bx + w] |= blob.mask
+        ids[by:by + h, bx:bx + w] = np.maximum(ids[by:by + h, bx:bx + w], blob.glyph_ids)
+    return LabelBlob(bbox=(float(x0), float(y0), float(x1), float(y1)), angle=blobs[0].angle,
+                     glyphs=sum(b.glyphs for b in blobs), mask=mask, glyph_ids=ids,
+                     clipped=any(b.clipped for b in blobs))
+
+
+def _split_blob(blob: LabelBlob, ticks: list[float]) -> list[LabelBlob]:
+    """A level blob holding the labels of several ticks (set so close that they touch), cut
+    between glyphs so that each piece is centred on its tick, as level labels are.
+
+    The cuts minimise the summed distance of the pieces' centres from their ticks (dynamic
+    programming over the glyphs in reading order).
+    """
+    ids = blob.glyph_ids
+    columns = [np.flatnonzero((ids == g).any(axis=0)) for g in np.unique(ids[ids > 0])]
+    spans = sorted((int(c.min()), int(c.max()) + 1) for c in columns)
+    count = len(spans)
+    if count < len(ticks):
+        return [blob]
+    starts = [start for start, _ in spans]
+    ends = np.maximum.accumulate([stop for _, stop in spans])  # right end of glyphs 0..i
+    # cost[i, k]: least summed offset of the first k pieces when they hold glyphs 0..i-1
+    cost = np.full((count + 1, len(ticks) + 1), np.inf)
+    back = np.zeros((count + 1, len(ticks) + 1), int)
+    cost[0, 0] = 0.0
+    for k in range(1, len(ticks) + 1):
+        for stop in range(k, count + 1):
+            for first in range(k - 1, stop):
+                centre = blob.bbox[0] + (starts[first] + ends[stop - 1]) / 2
+                total = cost[first, k - 1] + abs(centre - ticks[k - 1])
+                if total < cost[stop, k]:
+                    cost[stop, k], back[stop, k] = total, first
+    bounds, stop = [], count
+    for k in range(len(ticks), 0, -1):
+        bounds.append((back[stop, k], stop))
+        stop = back[stop, k]
+    pieces = []
+    for first, stop in reversed(bounds):  # cut columns midway in the gap between glyphs
+        c0 = 0 if first == 0 else (int(ends[first - 1]) + starts[first]) // 2
+        c1 = blob.mask.shape[1] if stop == count else (int(ends[stop - 1]) + starts[stop]) // 2
+        mask, piece_ids = blob.mask[:, c0:c1], ids[:, c0:c1]
+        pieces.append(LabelBlob(bbox=(blob.bbox[0] + c0, blob.bbox[1], blob.bbox[0] + c1, blob.bbox[3]),
+                                angle=blob.angle, glyphs=len(np.unique(piece_ids[piece_ids > 0])),
+                                mask=mask, glyph_ids=piece_ids, clipped=blob.clipped))
+    return pieces
+
+
+LEVEL_LABELS = 10.0  # degrees: labels this near level are centred on their ticks
+
+
+def labels_per_tick(blobs: tuple[LabelBlob, ...], angle: float | None, marks: list[float], side: str) -> list[LabelBlob]:
+    """The label blobs regrouped so that each tick mark has one: level labels are centred on
+    their tick, so blobs nearest the same tick are words of one label, and a blob that
+    reaches over several ticks holds several labels.
+
+    The grouping must agree with the spacing of the ink: every gap it closes (between words
+    of one label) narrower than every gap it keeps (between labels). Labels set between their
+    ticks (a category axis with its ticks at the category boundaries) fail that test and keep
+    their blobs as found, as do rotated labels and axes whose tick marks are not found.
+    """
+    if abs(angle or 0.0) > LEVEL_LABELS or len(marks) < 2 or not blobs:
+        return list(blobs)
+    along = 0 if side == "x" else 1
+    marks = sorted(float(m) for m in marks)  # numpy scalars would compare elementwise with ("alone", x)
+    reach = 0.5 * float(np.median(np.diff(marks)))
+    pieces: list[tuple[LabelBlob, int]] = []  # with the blob each came from
+    for source, blob in enumerate(blobs):
+        covered = [m for m in marks if blob.bbox[along] <= m <= blob.bbox[along + 2]]
+        found = _split_blob(blob, covered) if side == "x" and len(covered) >= 2 else [blob]
+        pieces += [(piece, source) for piece in found]
+    pieces.sort(key=lambda item: item[0].bbox[along])
+    owners = []
+    for piece, _ in pieces:
+        middle = float(piece.bbox[along] + piece.bbox[along + 2]) / 2
+        nearest = min(marks, key=lambda m: abs(m - middle))
+        owners.append(nearest if abs(nearest - middle) <= reach else ("alone", middle))
+    closed, kept = [], []
+    for (first, source), (second, next_source), owner, next_owner in zip(pieces, pieces[1:], owners, owners[1:]):
+        gap = second.bbox[along] - first.bbox[along + 2]
+        if owner == next_owner:
+            closed.append(gap)
+        elif source != next_source:  # cuts made inside one blob are not gaps of the ink
+            kept.append(gap)
+    if closed and kept and max(closed) >= min(kept):
+        return list(blobs)
+    groups: dict[object, list[LabelBlob]] = {}
+    for (piece, _), owner in zip(pieces, owners):
+        groups.setdefault(owner, []).append(piece)
+    return sorted((_merge_blobs(group) for group in groups.values()), key=lambda b: b.bbox[along] + b.bbox[along + 2])
+
+
+def read_label_blobs(rgb: np.ndarray, blobs: list[LabelBlob], angle: float | None, side: str) -> tuple[Tick, ...]:
+    """Each label's text, read by OCR with the label turned to read horizontally (_read_label).
+
+    Only the labels are read, never the whole figure: recognition is the dearest step of the audit.
+    """
     angle = 0.0 if angle is None else angle
     background = background_rgb(rgb)
     along = 0 if side == "x" else 1
     ticks = []
     for blob in blobs:
-        text = ""
-        for turn in (angle, angle - 180.0):
-            text = _read_turned(_turned_label(rgb, blob, turn, background))
-            if _looks_like_label(text):
-                break
+        text = _read_label(rgb, blob, angle, background)
         ticks.append(Tick(pixel=(blob.bbox[along] + blob.bbox[along + 2]) / 2, text=text, value=_number_text(text),
-                          angle=angle, bbox=blob.bbox))
+                          angle=angle, bbox=blob.bbox, clipped=blob.clipped))
     return tuple(ticks)
+
+
+def _label_texts(figure: Figure, measurements, side: str) -> tuple[Tick, ...]:
+    angle = measurements.get("label_directions")[side]
+    blobs = labels_per_tick(measurements.get("label_blobs")[side], angle, measurements.get("tick_marks")[side], side)
+    return read_label_blobs(require_pixels(figure), blobs, angle, side)
 
 
 def _number_text(text: str) -> float | None:
@@ -644,14 +868,14 @@ def _number_text(text: str) -> float | None:
 
 @measurement("x_label_texts")
 def x_label_texts(figure: Figure, measurements) -> tuple[Tick, ...]:
-    """Raster x tick labels read one by one, turned to their angle (in order along the axis)."""
-    return read_label_blobs(require_pixels(figure), measurements.get("label_blobs")["x"], "x")
+    """Raster x tick labels, one per tick where tick marks show, read one by one turned level (in order)."""
+    return _label_texts(figure, measurements, "x")
 
 
 @measurement("y_label_texts")
 def y_label_texts(figure: Figure, measurements) -> tuple[Tick, ...]:
     """Raster y tick labels read one by one (top to bottom)."""
-    return read_label_blobs(require_pixels(figure), measurements.get("label_blobs")["y"], "y")
+    return _label_texts(figure, measurements, "y")
 
 
 _MONTHS = ["january", "february", "march", "april", "may", "june", "july", "august", "september", "october",
@@ -674,6 +898,14 @@ def ordinal_key(label: str) -> float | None:
     if match:
         return float(match.group(2))
     return None
+
+
+def could_end_ordered_label(fragment: str) -> bool:
+    """Whether text could be the end of a label that ordinal_key orders (a label cut off at its
+    start): it holds a digit, or lies within a month or weekday name (its end, or the end of
+    an abbreviation of it)."""
+    text = fragment.strip().lower().rstrip(".")
+    return any(ch.isdigit() for ch in text) or any(text in name for name in _MONTHS + _WEEKDAYS)
 
 
 def natural_order(labels: list[str]) -> str | None:

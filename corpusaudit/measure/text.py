@@ -85,9 +85,9 @@ def _engine():
     return _engine_for(os.getpid())
 
 
-def ocr_words(rgb: np.ndarray, region: BBox, *, psm: int = 11, whitelist: str = "",
-              upscale: float = 2.0, min_confidence: float = 30.0) -> list[TextSpan]:
-    """Words tesseract reads inside region of an RGB image, with boxes in image pixels.
+def _recognise(rgb: np.ndarray, region: BBox, psm: int, whitelist: str,
+               upscale: float) -> list[tuple[str, BBox, float]]:
+    """(text, box in image pixels, confidence 0..100) of every word tesseract reads inside region.
 
     The strip is upscaled (tesseract reads glyphs of ~20 px best) and turned to grey.
     Raises MeasurementUnavailable when text recognition is not installed.
@@ -113,7 +113,7 @@ def ocr_words(rgb: np.ndarray, region: BBox, *, psm: int = 11, whitelist: str = 
     engine.SetVariable("tessedit_char_whitelist", whitelist)
     engine.SetImage(Image.fromarray(grey))
     engine.Recognize()
-    words: list[TextSpan] = []
+    words = []
     level = tesserocr.RIL.WORD
     iterator = engine.GetIterator()
     if iterator is None:  # nothing recognised
@@ -123,14 +123,38 @@ def ocr_words(rgb: np.ndarray, region: BBox, *, psm: int = 11, whitelist: str = 
             continue
         text = (word.GetUTF8Text(level) or "").strip()
         box = word.BoundingBox(level)
-        if not text or box is None or word.Confidence(level) < min_confidence:
+        if not text or box is None:
             continue
         left, top, right, bottom = box
         bx0, by0 = x0 + (left - 10) / upscale, y0 + (top - 10) / upscale
-        words.append(TextSpan(text=text, bbox=(bx0, by0, bx0 + (right - left) / upscale,
-                                               by0 + (bottom - top) / upscale),
-                              size_pt=0.0, angle=0.0, font="ocr"))
+        words.append((text, (bx0, by0, bx0 + (right - left) / upscale, by0 + (bottom - top) / upscale),
+                      float(word.Confidence(level))))
     return words
+
+
+def ocr_words(rgb: np.ndarray, region: BBox, *, psm: int = 11, whitelist: str = "",
+              upscale: float = 2.0, min_confidence: float = 30.0) -> list[TextSpan]:
+    """Words tesseract reads inside region of an RGB image, with boxes in image pixels.
+
+    Raises MeasurementUnavailable when text recognition is not installed.
+    """
+    return [TextSpan(text=text, bbox=box, size_pt=0.0, angle=0.0, font="ocr")
+            for text, box, confidence in _recognise(rgb, region, psm, whitelist, upscale)
+            if confidence >= min_confidence]
+
+
+def ocr_line(rgb: np.ndarray, upscale: float = 2.0, min_confidence: float = 30.0) -> tuple[str, float]:
+    """The one line of text an image holds, read as a line (its words left to right), and
+    tesseract's confidence in it: the lowest of its words' (0..100; 0 when nothing is read).
+
+    The lowest, not the mean: one doubtful word makes the whole label doubtful.
+    """
+    words = [w for w in _recognise(rgb, (0, 0, rgb.shape[1], rgb.shape[0]), 7, "", upscale)
+             if w[2] >= min_confidence]
+    if not words:
+        return "", 0.0
+    words.sort(key=lambda w: w[1][0])
+    return " ".join(w[0] for w in words), min(w[2] for w in words)
 
 
 def merge_words_into_lines(words: list[TextSpan], gap_factor: float = 0.8) -> list[TextSpan]:
