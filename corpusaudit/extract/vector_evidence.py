@@ -174,7 +174,9 @@ def _path_items(drawings: list[dict], matrix: pymupdf.Matrix, scale: float) -> l
             stroke=_colour(drawing.get("color")) if "s" in kind else None,
             width=float(drawing.get("width") or 0.0) * scale,
             points=points,
-            closed=bool(drawing.get("closePath")) or (len(points) > 2 and points[0] == points[-1]),
+            # a rectangle operator draws a closed subpath (square markers are often one)
+            closed=bool(drawing.get("closePath")) or (len(points) > 2 and points[0] == points[-1])
+            or any(item[0] in ("re", "qu") for item in drawing["items"]),
             is_rect=_is_rect(drawing["items"]),
             dashes=str(drawing.get("dashes") or ""),
             # 0.0 is a real opacity (invisible ink); only a missing value means opaque

@@ -16,7 +16,7 @@ import cv2
 import numpy as np
 
 from corpusaudit.measure import colour, glyphs, measurement, quality
-from corpusaudit.measure.shapes import polyline_length, require_pixels, union_box
+from corpusaudit.measure.shapes import polygon_area, polyline_length, require_pixels, union_box
 from corpusaudit.model import RGB, BBox, Figure, MeasurementUnavailable, PathItem
 
 MAX_CATEGORICAL = 12  # more distinct chromatic colours than this: a continuous scale, not categories
@@ -111,14 +111,6 @@ class Compression:
 
 def _is_vector(figure: Figure) -> bool:
     return figure.source == "vector" and figure.vector is not None
-
-
-def _polygon_area(points: list[tuple[float, float]]) -> float:
-    """Shoelace area. Plain Python: paths are short and a figure may hold thousands of them."""
-    if len(points) < 3:
-        return 0.0
-    twice = sum(x0 * y1 - x1 * y0 for (x0, y0), (x1, y1) in zip(points, points[1:] + points[:1]))
-    return abs(twice) / 2.0
 
 
 def _displayed(rgb: RGB | np.ndarray, opacity: float | np.ndarray, background: np.ndarray) -> np.ndarray:
@@ -296,7 +288,7 @@ def _vector_palette(figure: Figure) -> tuple[np.ndarray, np.ndarray, list[BBox]]
     for path in figure.vector.paths:
         box_area = max(0.0, path.bbox[2] - path.bbox[0]) * max(0.0, path.bbox[3] - path.bbox[1])
         if path.fill is not None and box_area < BACKGROUND_SHARE * figure_area:
-            area = _polygon_area(path.points) if len(path.points) >= 3 else box_area
+            area = polygon_area(path.points) if len(path.points) >= 3 else box_area
             add(path.fill, path.fill_opacity, area, path)
         if path.stroke is not None:
             add(path.stroke, path.stroke_opacity, polyline_length(path.points) * max(path.width, 1.0), path)

@@ -85,6 +85,11 @@ def _vector_plot_area(figure: Figure) -> BBox:
     if horizontal and vertical:
         lines = horizontal + vertical
         return (min(b[0] for b in lines), min(b[1] for b in lines), max(b[2] for b in lines), max(b[3] for b in lines))
+    # a frame drawn as an outline around the plot (themes without axis lines)
+    frames = [p.bbox for p in paths if p.is_rect and "s" in p.kind and p.stroke is not None and is_neutral(p.stroke)
+              and 0.1 <= bbox_area(p.bbox) / (width * height) < 0.97]
+    if frames:
+        return max(frames, key=bbox_area)
     raise MeasurementUnavailable("no plot area (no axes frame or axis lines found)")
 
 

@@ -15,7 +15,8 @@ import numpy as np
 from corpusaudit.measure import measurement
 from corpusaudit.measure.legend import in_any
 from corpusaudit.measure.shapes import (
-    background_rgb, bbox_area, colour_distance, colour_key, component_stats, intersect, is_vector, require_pixels,
+    background_rgb, bbox_area, colour_distance, colour_key, component_stats, intersect, is_rect_like, is_vector,
+    require_pixels,
 )
 from corpusaudit.model import BBox, Figure, MeasurementUnavailable
 
@@ -62,7 +63,7 @@ def _vector_rects(figure: Figure, plot: BBox, frames: list[BBox]) -> list[Bar]:
     bars = []
     plot_area = bbox_area(plot)
     for path in figure.vector.paths:
-        if not path.is_rect or "f" not in path.kind or path.fill is None or path.fill_opacity < 0.05:
+        if not is_rect_like(path) or "f" not in path.kind or path.fill is None or path.fill_opacity < 0.05:
             continue
         clipped = intersect(path.bbox, plot)
         if clipped is None or bbox_area(clipped) > 0.9 * plot_area or in_any(path.bbox, frames):

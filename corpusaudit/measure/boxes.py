@@ -29,14 +29,22 @@ class Box:
     position: float  # x pixel of the box centre
 
 
+MEDIAN_BAR_PX = 4.0  # a filled bar at most this tall across a box is its median line
+
+
 def _vector_boxes(figure: Figure, plot: BBox, frames: list[BBox]) -> list[Box]:
     segments = [(axis_aligned_segment(p), p.bbox) for p in figure.vector.paths]
-    horizontal = [b for d, b in segments if d == "h"]
+    # medians: stroked segments, or thin filled bars (how some libraries draw a median)
+    thin = [p.bbox for p in figure.vector.paths if p.is_rect and "f" in p.kind
+            and p.bbox[3] - p.bbox[1] <= MEDIAN_BAR_PX and p.bbox[2] - p.bbox[0] >= 2 * MEDIAN_BAR_PX]
+    horizontal = [b for d, b in segments if d == "h"] + thin
     vertical = [b for d, b in segments if d == "v"]
     boxes = []
     for path in figure.vector.paths:
         if not path.is_rect or intersect(path.bbox, plot) is None or in_any(path.bbox, frames):
             continue
+        if path.bbox[3] - path.bbox[1] <= MEDIAN_BAR_PX:
+            continue  # a median bar, not a box
         x0, y0, x1, y1 = path.bbox
         if bbox_area(path.bbox) > 0.5 * bbox_area(plot) or x1 - x0 < 2:
             continue
@@ -45,7 +53,7 @@ def _vector_boxes(figure: Figure, plot: BBox, frames: list[BBox]) -> list[Box]:
         whiskers = [b for b in vertical if abs(b[0] - middle) <= 1.5 and (abs(b[3] - y0) <= 1.5 or abs(b[1] - y1) <= 1.5)]
         # A box filled and outlined as two paths is one box.
         if medians and whiskers and not any(max(abs(a - b) for a, b in zip(box.bbox, path.bbox)) <= 1.0 for box in boxes):
-            boxes.append(Box(bbox=path.bbox, median=medians[0][1], position=middle))
+            boxes.append(Box(bbox=path.bbox, median=(medians[0][1] + medians[0][3]) / 2, position=middle))
     return boxes
 
 

@@ -104,10 +104,17 @@ def _rim_circle(points: np.ndarray) -> tuple[tuple[float, float], float]:
     return centre, radius
 
 
+WEDGE_MIN_EXTENT = 0.1  # a wedge's box spans at least this share of the largest wedge's
+
+
 def _vector_pie(figure: Figure, frames: list[BBox]) -> Pie:
     candidates = [p for p in figure.vector.paths
                   if "f" in p.kind and not p.is_rect and len(p.points) >= 6 and p.fill is not None
                   and not in_any(p.bbox, frames)]
+    # Legend symbols without a frame (small circles) are no wedges: even a thin wedge spans
+    # from the centre (or the hole) to the rim, a good share of the largest wedge's extent.
+    extent = [max(p.bbox[2] - p.bbox[0], p.bbox[3] - p.bbox[1]) for p in candidates]
+    candidates = [p for p, size in zip(candidates, extent) if size >= WEDGE_MIN_EXTENT * max(extent, default=0.0)]
     if len(candidates) < 2:
         raise MeasurementUnavailable("no pie wedges found")
     try:

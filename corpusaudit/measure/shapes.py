@@ -78,6 +78,27 @@ def polyline_length(points: list[tuple[float, float]]) -> float:
     return sum((math.hypot(x1 - x0, y1 - y0) for (x0, y0), (x1, y1) in zip(points, points[1:])), 0.0)
 
 
+def polygon_area(points: list[tuple[float, float]]) -> float:
+    """Shoelace area. Plain Python: paths are short and a figure may hold thousands of them."""
+    if len(points) < 3:
+        return 0.0
+    twice = sum(x0 * y1 - x1 * y0 for (x0, y0), (x1, y1) in zip(points, points[1:] + points[:1]))
+    return abs(twice) / 2.0
+
+
+ROUNDED_FILL = 0.92  # polygon area / box area from which a closed path is a rectangle with rounded corners
+
+
+def is_rect_like(path: PathItem) -> bool:
+    """A rectangle, or a closed path that nearly fills its box: a rectangle with rounded corners
+    (a circle fills 0.785 of its box, a wedge or a rotated rectangle less)."""
+    if path.is_rect:
+        return True
+    x0, y0, x1, y1 = path.bbox
+    box = (x1 - x0) * (y1 - y0)
+    return path.closed and len(path.points) >= 8 and box > 0 and polygon_area(path.points) >= ROUNDED_FILL * box
+
+
 # ------------------------------------------------------------------ raster helpers
 
 
