@@ -326,7 +326,8 @@ def box_chart(rng: np.random.Generator, index: int) -> Chart:
         angle = -45
         step = _band_step(rng, labels, angle, 36, 64)
     data = [{"group": label, "reading": float(v)} for label, k in zip(labels, order) for v in samples[k]]
-    group = {"field": "group", "type": "nominal", "sort": None, "axis": _axis(angle, "District")}
+    # An explicit order: with sort null the boxplot's aggregation does not keep the data order.
+    group = {"field": "group", "type": "nominal", "sort": labels, "axis": _axis(angle, "District")}
     reading = {"field": "reading", "type": "quantitative", "scale": {"zero": False}, "title": "Nitrate (mg/l)"}
     mark: dict[str, Any] = {"type": "boxplot", "extent": 1.5 if rng.random() < 0.7 else "min-max"}
     if rng.random() < 0.4:

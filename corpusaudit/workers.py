@@ -210,7 +210,7 @@ def _run(context, function, queue, jobs, time_limit, memory_limit, on_peak, recy
                 yield task, outcome
     finally:
         for worker in workers:
-            if on_peak:
+            if on_peak and worker.served:  # a replacement started near the end may never have served
                 on_peak(worker.peak_rss)
             worker.stop()
 
