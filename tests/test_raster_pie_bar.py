@@ -163,3 +163,30 @@ def test_raster_stacked_segments_are_counted_under_grid_lines():
     _, measurements = _measure(draw, "bar", "raster", style="bmh")
     chart = measurements.get("bars")
     assert len(chart.stacks) == 4 and chart.max_segments == 6
+
+
+@pytest.mark.parametrize("shares", [[0.203, 0.201, 0.275, 0.117, 0.205], [0.162, 0.3, 0.324, 0.066, 0.147]])
+def test_separator_edges_smeared_by_jpeg_are_no_slices(shares):
+    # Reference renderer: matplotlib, white separators 1.5 pt wide, saved as JPEG at quality 40
+    # (OpenCV's encoder, 4:2:0 chroma): the separators' edges take pale colours of their own.
+    import io
+
+    import cv2
+    from matplotlib.figure import Figure as PlotFigure
+
+    from corpusaudit.model import Figure
+
+    plot = PlotFigure(figsize=(5.3, 3.2), layout="constrained")
+    plot.add_subplot().pie(shares, startangle=90, counterclock=False,
+                           wedgeprops={"edgecolor": "white", "linewidth": 1.5})
+    buffer = io.BytesIO()
+    plot.savefig(buffer, format="png", dpi=150)
+    pixels = cv2.imdecode(np.frombuffer(buffer.getvalue(), np.uint8), cv2.IMREAD_COLOR)
+    _, coded = cv2.imencode(".jpg", pixels, [cv2.IMWRITE_JPEG_QUALITY, 40])
+    rgb = cv2.imdecode(coded, cv2.IMREAD_COLOR)[:, :, ::-1].copy()
+    figure = Figure(figure_id="pie-jpeg", document_id="d", path="pie.jpg", page=1, index=0,
+                    bbox=(0, 0, rgb.shape[1], rgb.shape[0]), source="raster", width_px=rgb.shape[1],
+                    height_px=rgb.shape[0], pixels=rgb, chart_type="pie")
+    pie = Measurements(figure).get("pie")
+    assert len(pie.slices) == 5
+    assert sorted(pie.shares) == pytest.approx(sorted(shares), abs=0.01)

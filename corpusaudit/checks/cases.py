@@ -365,7 +365,7 @@ def _draw(case: Case, backend_format: str, dpi: int) -> bytes:
     from matplotlib.figure import Figure as MplFigure
 
     with matplotlib.style.context(case.style), matplotlib.rc_context({"font.size": case.font_size, "pdf.fonttype": 42}):
-        fig = MplFigure(figsize=case.size)
+        fig = MplFigure(figsize=case.size, layout="constrained")
         case.draw(fig)
         buffer = io.BytesIO()
         fig.savefig(buffer, format=backend_format, dpi=dpi)

@@ -375,6 +375,7 @@ def _round_raster_pie(rgb: np.ndarray) -> Pie:
         if label >= 0 and length >= min_columns and best[columns].mean() >= 0.4 * rows:
             long_runs.append(run)
     long_runs = _merge_interrupted(long_runs, votes, rows)
+    long_runs = _without_separator_blends(long_runs, centres, background, steps)
     if not long_runs:
         raise MeasurementUnavailable("no slices found along the pie")
     if len(long_runs) == 1 and long_runs[0][2] >= steps - 2 * min_columns:
@@ -393,6 +394,49 @@ def _round_raster_pie(rgb: np.ndarray) -> Pie:
         slices.append(Slice(start=start * 360.0 / steps, span=span, colour=colour))
     return Pie(centre=centre, radius=float(radius), slices=tuple(sorted(slices, key=lambda s: s.start)),
                hole=hole)
+
+
+SEPARATOR_BLEND_DEG = 2.5  # narrower runs whose colour mixes a neighbour with the separator are its edge
+BLEND_TOLERANCE = 12.0  # sRGB distance from the mixing segment
+
+
+def _without_separator_blends(runs: list[tuple[int, int, int]], centres: np.ndarray, background: np.ndarray,
+                              steps: int) -> list[tuple[int, int, int]]:
+    """Drop narrow runs whose colour is a mix of the separator (background) colour and the
+    neighbouring slices' colours: the antialiased edge of a separator line, smeared by JPEG's
+    chroma subsampling into a colour of its own (white, red and green give a pale yellow)."""
+    if len(runs) < 3:
+        return runs
+    kept = []
+    for index, (start, label, length) in enumerate(runs):
+        neighbours = [centres[n].astype(float) for n in (runs[index - 1][1], runs[(index + 1) % len(runs)][1])
+                      if n != label]
+        narrow = length * 360.0 / steps < SEPARATOR_BLEND_DEG
+        if narrow and neighbours and \
+                _mix_distance(centres[label].astype(float), [np.asarray(background, float)] + neighbours) < BLEND_TOLERANCE:
+            continue
+        kept.append((start, label, length))
+    return kept
+
+
+# sRGB -> Y, Cb, Cr (ITU-R BT.601, as JPEG codes colour)
+_YCBCR = np.array([[0.299, 0.587, 0.114], [-0.168736, -0.331264, 0.5], [0.5, -0.418688, -0.081312]])
+
+
+def _mix_distance(colour: np.ndarray, sources: list[np.ndarray]) -> float:
+    """How far colour is from what antialiasing and JPEG make of the source colours: its
+    chroma a mix of theirs (JPEG averages chroma over 2x2 pixels but keeps each pixel's
+    luma) and its luma within theirs. Chroma distance (Cb, Cr) from the nearest mix with
+    non-negative weights summing to one, or the luma overshoot if larger."""
+    from scipy.optimize import nnls
+
+    ycc = _YCBCR @ np.column_stack(sources)
+    own = _YCBCR @ colour
+    weight = 1000.0  # a heavily weighted row enforces the weights' sum
+    mix, _ = nnls(np.vstack([ycc[1:], np.full(len(sources), weight)]), np.append(own[1:], weight))
+    chroma = float(np.linalg.norm(ycc[1:] @ mix - own[1:]))
+    luma = max(0.0, float(own[0] - ycc[0].max()), float(ycc[0].min() - own[0]))
+    return max(chroma, luma)
 
 
 def _merge_interrupted(runs: list[tuple[int, int, int]], votes: np.ndarray, rows: int) -> list[tuple[int, int, int]]:
