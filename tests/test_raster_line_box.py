@@ -127,3 +127,28 @@ def test_translucent_blend_arithmetic():
     # an anti-aliased edge pixel lies between its line's colour and the panel
     assert _between(0.5 * blue + 0.5 * white, blue, white)
     assert not _between(orange, blue, white)
+
+
+def test_a_median_in_the_page_colour_splits_no_box():
+    # Drawn with Pillow as some libraries draw box plots: the median a white bar across a filled
+    # box, so the box's ink is two halves. Geometry invented; medians at rows 120, 150, 90.
+    from PIL import Image, ImageDraw
+
+    from corpusaudit.model import Figure
+
+    image = Image.new("RGB", (420, 300), "white")
+    draw = ImageDraw.Draw(image)
+    draw.line((40, 20, 40, 260), fill=(60, 60, 60), width=2)
+    draw.line((40, 260, 400, 260), fill=(60, 60, 60), width=2)
+    for k, (q3, median, q1) in enumerate([(90, 120, 160), (120, 150, 190), (60, 90, 130)]):
+        x0 = 80 + 110 * k
+        middle = x0 + 25
+        draw.line((middle, q3 - 30, middle, q1 + 30), fill=(60, 60, 60), width=2)  # whiskers
+        draw.rectangle((x0, q3, x0 + 50, q1), fill=(76, 120, 168))
+        draw.rectangle((x0, median - 1, x0 + 50, median + 1), fill="white")
+    rgb = np.asarray(image).copy()
+    figure = Figure(figure_id="split-boxes", document_id="d", path="boxes.png", page=1, index=0,
+                    bbox=(0, 0, 420, 300), source="raster", width_px=420, height_px=300, pixels=rgb,
+                    chart_type="box")
+    boxes = Measurements(figure).get("boxes")
+    assert [round(b.median) for b in boxes] == [120, 150, 90]

@@ -108,7 +108,7 @@ def _filled_boxes(inner: np.ndarray, ink: np.ndarray) -> list[tuple[BBox, float]
     colour (the median) and with a whisker at the middle of the top or bottom."""
     solid = cv2.morphologyEx(ink, cv2.MORPH_OPEN, np.ones((5, 5), np.uint8))  # whiskers and caps go
     contours, _ = cv2.findContours(solid, cv2.RETR_CCOMP, cv2.CHAIN_APPROX_SIMPLE)
-    found = []
+    found, plain = [], []
     for contour in contours:
         bx, by, bw, bh = cv2.boundingRect(contour)
         if bw < 8 or bh < 6 or cv2.contourArea(contour) < 0.85 * bw * bh:
@@ -119,14 +119,27 @@ def _filled_boxes(inner: np.ndarray, ink: np.ndarray) -> list[tuple[BBox, float]
         fill = np.median(interior.reshape(-1, 3), axis=0)
         lined = (colour_distance(interior, fill) > 50).mean(axis=1)
         rows = np.flatnonzero(lined >= 0.8)
-        if len(rows) == 0 or len(rows) > 6:
-            continue
-        bottom_ink = ink[min(ink.shape[0] - 1, by + bh + 2), bx + bw // 2 - 1:bx + bw // 2 + 2]
-        top_ink = ink[max(0, by - 3), bx + bw // 2 - 1:bx + bw // 2 + 2]
-        if not (bottom_ink.any() or top_ink.any()):
-            continue  # no whisker: a bar or a legend swatch
-        found.append(((float(bx), float(by), float(bx + bw), float(by + bh)), float(by + 3 + rows.mean())))
+        if len(rows) == 0:
+            plain.append((bx, by, bw, bh))
+        elif len(rows) <= 6 and _has_whisker(ink, bx, by, bw, bh):
+            found.append(((float(bx), float(by), float(bx + bw), float(by + bh)), float(by + 3 + rows.mean())))
+    # A median drawn in the page colour cuts a filled box in two: halves of one width, one
+    # just above the other, joined by the median's gap.
+    for upper in plain:
+        for lower in plain:
+            gap = lower[1] - (upper[1] + upper[3])
+            if abs(upper[0] - lower[0]) <= 2 and abs(upper[2] - lower[2]) <= 2 and 0 <= gap <= MEDIAN_BAR_PX + 1:
+                bx, by, bw, bh = upper[0], upper[1], upper[2], lower[1] + lower[3] - upper[1]
+                if _has_whisker(ink, bx, by, bw, bh):
+                    found.append(((float(bx), float(by), float(bx + bw), float(by + bh)), float(upper[1] + upper[3] + gap / 2)))
     return found
+
+
+def _has_whisker(ink: np.ndarray, bx: int, by: int, bw: int, bh: int) -> bool:
+    """Ink just above or below the middle of the box (no whisker: a bar or a legend swatch)."""
+    bottom_ink = ink[min(ink.shape[0] - 1, by + bh + 2), bx + bw // 2 - 1:bx + bw // 2 + 2]
+    top_ink = ink[max(0, by - 3), bx + bw // 2 - 1:bx + bw // 2 + 2]
+    return bool(bottom_ink.any() or top_ink.any())
 
 
 def _raster_boxes(rgb: np.ndarray, plot: BBox) -> list[Box]:
