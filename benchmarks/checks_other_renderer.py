@@ -380,28 +380,17 @@ def vector_figure(chart: Chart):
 
 def raster_figure(chart: Chart, rng: np.random.Generator):
     """A PNG at the vector figure's scale, degraded as corpusaudit.checks.cases.raster_figure does."""
-    import cv2
     import vl_convert as vlc
     from PIL import Image
 
-    from corpusaudit.model import Figure
+    from corpusaudit.checks.cases import degraded_raster_figure
 
     png = vlc.vegalite_to_png(chart.spec, scale=DPI / 72.0, **_theme(chart))
     with Image.open(io.BytesIO(png)) as image:
         rgba = image.convert("RGBA")
     flat = Image.new("RGBA", rgba.size, (255, 255, 255, 255))
     flat.alpha_composite(rgba)
-    pixels = np.asarray(flat.convert("RGB"))
-    if rng.random() < 0.25:
-        factor = float(rng.uniform(0.75, 0.9))
-        pixels = cv2.resize(pixels, None, fx=factor, fy=factor, interpolation=cv2.INTER_AREA)
-    if rng.random() < 0.3:
-        ok, encoded = cv2.imencode(".jpg", pixels[:, :, ::-1], [cv2.IMWRITE_JPEG_QUALITY, int(rng.integers(80, 95))])
-        pixels = cv2.imdecode(encoded, cv2.IMREAD_COLOR)[:, :, ::-1]
-    pixels = np.ascontiguousarray(pixels)
-    return Figure(figure_id=chart.name + "-r", document_id="bench", path=chart.name + ".png", page=1, index=0,
-                  bbox=(0, 0, pixels.shape[1], pixels.shape[0]), source="raster", width_px=pixels.shape[1],
-                  height_px=pixels.shape[0], effective_ppi=float(DPI), pixels=pixels, chart_type=chart.chart_type)
+    return degraded_raster_figure(np.asarray(flat.convert("RGB")), chart.name, chart.chart_type, rng, DPI)
 
 
 # ------------------------------------------------------------------ scoring

@@ -381,13 +381,20 @@ def vector_figure(case: Case, dpi: int = RENDER_DPI):
 
 def raster_figure(case: Case, rng: np.random.Generator | None = None, dpi: int = RENDER_DPI):
     """The case as a raster figure (PNG), degraded by JPEG and downscaling when rng says so."""
-    import cv2
     from PIL import Image
-
-    from corpusaudit.model import Figure
 
     rng = rng or np.random.default_rng(0)
     pixels = np.asarray(Image.open(io.BytesIO(_draw(case, "png", dpi))).convert("RGB"))
+    return degraded_raster_figure(pixels, case.name, case.chart_type, rng, dpi)
+
+
+def degraded_raster_figure(pixels: np.ndarray, name: str, chart_type: str, rng: np.random.Generator, dpi: int):
+    """A raster Figure of rendered RGB pixels, a quarter of them downscaled (0.75-0.9) and
+    three in ten saved as JPEG (quality 80-95) first, as deposited rasters often are."""
+    import cv2
+
+    from corpusaudit.model import Figure
+
     if rng.random() < 0.25:
         factor = float(rng.uniform(0.75, 0.9))
         pixels = cv2.resize(pixels, None, fx=factor, fy=factor, interpolation=cv2.INTER_AREA)
@@ -395,6 +402,6 @@ def raster_figure(case: Case, rng: np.random.Generator | None = None, dpi: int =
         ok, encoded = cv2.imencode(".jpg", pixels[:, :, ::-1], [cv2.IMWRITE_JPEG_QUALITY, int(rng.integers(80, 95))])
         pixels = cv2.imdecode(encoded, cv2.IMREAD_COLOR)[:, :, ::-1]
     pixels = np.ascontiguousarray(pixels)
-    return Figure(figure_id=case.name + "-r", document_id="bench", path=case.name + ".png", page=1, index=0,
+    return Figure(figure_id=name + "-r", document_id="bench", path=name + ".png", page=1, index=0,
                   bbox=(0, 0, pixels.shape[1], pixels.shape[0]), source="raster", width_px=pixels.shape[1],
-                  height_px=pixels.shape[0], effective_ppi=float(dpi), pixels=pixels, chart_type=case.chart_type)
+                  height_px=pixels.shape[0], effective_ppi=float(dpi), pixels=pixels, chart_type=chart_type)

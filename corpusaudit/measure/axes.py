@@ -665,22 +665,22 @@ def _vector_label_angle(figure: Figure, plot: BBox, side: str) -> LabelAngle:
     return LabelAngle(angle=float(np.median(folded)), region=region, count=len(labels))
 
 
+def _side_label_angle(figure: Figure, measurements, side: str) -> LabelAngle:
+    if is_vector(figure):
+        return _vector_label_angle(figure, measurements.get("plot_area"), side)
+    return _raster_label_angle(measurements.get("label_blobs")[side], measurements.get("label_directions")[side])
+
+
 @measurement("tick_label_angle")
 def tick_label_angle(figure: Figure, measurements) -> LabelAngle:
     """Rotation of the x-axis tick labels (vector: stated angle; raster: from the labels' glyphs)."""
-    plot = measurements.get("plot_area")
-    if is_vector(figure):
-        return _vector_label_angle(figure, plot, "x")
-    return _raster_label_angle(measurements.get("label_blobs")["x"], measurements.get("label_directions")["x"])
+    return _side_label_angle(figure, measurements, "x")
 
 
 @measurement("y_tick_label_angle")
 def y_tick_label_angle(figure: Figure, measurements) -> LabelAngle:
     """Rotation of the y-axis tick labels: the category labels of a horizontal bar chart."""
-    plot = measurements.get("plot_area")
-    if is_vector(figure):
-        return _vector_label_angle(figure, plot, "y")
-    return _raster_label_angle(measurements.get("label_blobs")["y"], measurements.get("label_directions")["y"])
+    return _side_label_angle(figure, measurements, "y")
 
 
 # ------------------------------------------------------------------ label text (rasters)
