@@ -228,3 +228,16 @@ def test_panels_of_one_embedded_graphic_under_one_caption_are_one_figure(tmp_pat
     (figure,) = [f for f in result.figures if f.page == 1]
     assert figure.figure_number == "6" and iou(figure.bbox, tuple(rect)) > 0.95
     assert len([f for f in result.figures if f.page == 2]) == 2  # no caption ties them: two charts
+
+
+def test_small_drawings_keep_fewer_curve_samples():
+    # A marker-sized circle is sampled coarsely (its shape spans a few pixels), a wedge-sized one
+    # finely enough to fit its arc; both keep their true extent. PyMuPDF draws circles as 4 Beziers.
+    doc = pymupdf.open()
+    page = doc.new_page(width=300, height=300)
+    page.draw_circle((50, 50), 3, color=None, fill=(0.2, 0.4, 0.7))
+    page.draw_circle((180, 180), 60, color=None, fill=(0.8, 0.4, 0.1))
+    evidence = vector_evidence(page, page.rect, 150 / 72)
+    small, large = sorted(evidence.paths, key=lambda p: p.bbox[2] - p.bbox[0])
+    assert len(small.points) <= 9 < 30 <= len(large.points)
+    assert small.bbox[2] - small.bbox[0] == pytest.approx(6 * 150 / 72, abs=0.5)

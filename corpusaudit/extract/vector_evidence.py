@@ -16,9 +16,17 @@ import pymupdf
 from corpusaudit.model import PathItem, TextSpan, VectorEvidence
 
 CURVE_SAMPLES = 8  # points per cubic Bezier segment: enough to recover arcs of pie wedges
-# Bernstein weights of the samples t = 1/8 .. 1 (rows) for the four control points (columns).
-_T = np.arange(1, CURVE_SAMPLES + 1)[:, None] / CURVE_SAMPLES
-_BEZIER_WEIGHTS = np.hstack([(1 - _T) ** 3, 3 * (1 - _T) ** 2 * _T, 3 * (1 - _T) * _T**2, _T**3])
+MARKER_SAMPLES = 2  # points per curve of a drawing smaller than SMALL_DRAWING_PX
+SMALL_DRAWING_PX = 16.0  # figure pixels: a scatter marker or a glyph, not a wedge or a line
+
+
+def _bernstein(samples: int) -> np.ndarray:
+    """Weights of the samples t = 1/n .. 1 (rows) for the four control points (columns)."""
+    t = np.arange(1, samples + 1)[:, None] / samples
+    return np.hstack([(1 - t) ** 3, 3 * (1 - t) ** 2 * t, 3 * (1 - t) * t**2, t**3])
+
+
+_BEZIER_WEIGHTS = {n: _bernstein(n) for n in (CURVE_SAMPLES, MARKER_SAMPLES)}
 
 
 def _rgb_from_int(value: int) -> tuple[float, float, float]:
@@ -41,16 +49,21 @@ def _all_path_points(drawings: list[dict], matrix: pymupdf.Matrix) -> list[list[
 
     All drawings of a region go through numpy together: a scatter plot is thousands of tiny
     drawings of four curves each, too many for per-curve arithmetic in Python. An affine map
-    commutes with Bezier evaluation, so control points are transformed first.
+    commutes with Bezier evaluation, so control points are transformed first. Curves of
+    drawings smaller than SMALL_DRAWING_PX (markers, glyph outlines) get MARKER_SAMPLES points:
+    their shape is a few pixels, and their points are most of a scatter plot's.
     """
+    scale = math.sqrt(abs(matrix.a * matrix.d - matrix.b * matrix.c))
     raw: list[float] = []  # x, y of each vertex in page points (flat: numpy reads floats faster than pairs)
     keep_repeat: list[int] = []  # indices of rectangle corners, kept even when repeated
-    controls: list[float] = []  # the four control points of each curve, flat
-    slots: list[int] = []
+    curves = {CURVE_SAMPLES: ([], []), MARKER_SAMPLES: ([], [])}  # samples -> (flat control points, slots)
     starts: list[int] = []
-    placeholder = [0.0] * (2 * CURVE_SAMPLES)
     for drawing in drawings:
         starts.append(len(raw) // 2)
+        rect = drawing["rect"]
+        samples = MARKER_SAMPLES if max(rect.width, rect.height) * scale < SMALL_DRAWING_PX else CURVE_SAMPLES
+        controls, slots = curves[samples]
+        placeholder = [0.0] * (2 * samples)
         for item in drawing["items"]:
             op = item[0]
             if op == "l":
@@ -62,10 +75,10 @@ def _all_path_points(drawings: list[dict], matrix: pymupdf.Matrix) -> list[list[
                 controls += (p0[0], p0[1], p1[0], p1[1], p2[0], p2[1], p3[0], p3[1])
                 raw += placeholder
             elif op == "re":
-                rect = item[1]
+                box = item[1]
                 first = len(raw) // 2
                 keep_repeat += range(first, first + 4)
-                raw += (rect.x0, rect.y0, rect.x1, rect.y0, rect.x1, rect.y1, rect.x0, rect.y1)
+                raw += (box.x0, box.y0, box.x1, box.y0, box.x1, box.y1, box.x0, box.y1)
             elif op == "qu":
                 quad = item[1]
                 for corner in (quad.ul, quad.ur, quad.lr, quad.ll):
@@ -75,10 +88,11 @@ def _all_path_points(drawings: list[dict], matrix: pymupdf.Matrix) -> list[list[
     affine = np.array([[matrix.a, matrix.b], [matrix.c, matrix.d]])
     shift = np.array([matrix.e, matrix.f])
     points = np.array(raw, dtype=np.float64).reshape(-1, 2) @ affine + shift
-    if controls:
-        control = np.array(controls, dtype=np.float64).reshape(-1, 4, 2) @ affine + shift
-        samples = np.einsum("tk,nkd->ntd", _BEZIER_WEIGHTS, control)
-        points[np.array(slots)[:, None] + np.arange(CURVE_SAMPLES)] = samples
+    for samples, (controls, slots) in curves.items():
+        if controls:
+            control = np.array(controls, dtype=np.float64).reshape(-1, 4, 2) @ affine + shift
+            sampled = np.einsum("tk,nkd->ntd", _BEZIER_WEIGHTS[samples], control)
+            points[np.array(slots)[:, None] + np.arange(samples)] = sampled
     keep = np.ones(len(points), dtype=bool)
     keep[1:] = (points[1:] != points[:-1]).any(axis=1)
     keep[keep_repeat] = True
