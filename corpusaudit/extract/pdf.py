@@ -61,12 +61,17 @@ def effective_ppi(width_px: int, height_px: int, transform: tuple[float, ...]) -
     return min(width_px / along_x, height_px / along_y)
 
 
+def _rgb(pix: pymupdf.Pixmap) -> np.ndarray:
+    """An RGB pixmap's pixels as an HxWx3 array of its own."""
+    return np.frombuffer(pix.samples, dtype=np.uint8).reshape(pix.height, pix.width, pix.n)[:, :, :3].copy()
+
+
 def render_clip(display: pymupdf.DisplayList, shown: pymupdf.Rect, dpi: int) -> np.ndarray:
     """Pixels of a displayed-page rectangle (the clip is in displayed coordinates), drawn from
     the page's display list, as Page.get_pixmap does, but interpreted once for all figures."""
     zoom = dpi / 72.0
     pix = display.get_pixmap(matrix=pymupdf.Matrix(zoom, zoom), clip=shown, alpha=False, colorspace=pymupdf.csRGB)
-    return np.frombuffer(pix.samples, dtype=np.uint8).reshape(pix.height, pix.width, pix.n)[:, :, :3].copy()
+    return _rgb(pix)
 
 
 def _reason(exc: Exception) -> str:
@@ -279,7 +284,7 @@ def lossy_native_pixels(pdf: pymupdf.Document, info: dict) -> np.ndarray | None:
         pixmap = pymupdf.Pixmap(pixmap, 0)
     if pixmap.colorspace is None or pixmap.colorspace.n != 3:
         pixmap = pymupdf.Pixmap(pymupdf.csRGB, pixmap)
-    return np.frombuffer(pixmap.samples, dtype=np.uint8).reshape(pixmap.height, pixmap.width, pixmap.n)[:, :, :3].copy()
+    return _rgb(pixmap)
 
 
 def _figure(reading: _Page, index: int, shown: pymupdf.Rect, source: str, pixels: np.ndarray,
@@ -428,11 +433,8 @@ def _too_small_for_a_figure(drawings: list[dict], min_size: float) -> bool:
     would be judged small (vector_verdict), so grouping them can be skipped."""
     if not drawings:
         return True
-    x0 = min(d["rect"].x0 for d in drawings)
-    x1 = max(d["rect"].x1 for d in drawings)
-    y0 = min(d["rect"].y0 for d in drawings)
-    y1 = max(d["rect"].y1 for d in drawings)
-    return min(x1 - x0, y1 - y0) < min_size
+    ink = union(d["rect"] for d in drawings)
+    return min(ink.width, ink.height) < min_size
 
 
 def _within(inner, outer) -> bool:
@@ -444,7 +446,7 @@ def render_page_view(display: pymupdf.DisplayList, longest_px: int) -> np.ndarra
     """The whole displayed page, longest side longest_px, from the display list the figures used."""
     zoom = longest_px / max(display.rect.width, display.rect.height)
     pix = display.get_pixmap(matrix=pymupdf.Matrix(zoom, zoom), alpha=False, colorspace=pymupdf.csRGB)
-    return np.frombuffer(pix.samples, dtype=np.uint8).reshape(pix.height, pix.width, pix.n)[:, :, :3].copy()
+    return _rgb(pix)
 
 
 def extract_pdf(doc: Document, config: ExtractConfig, pages: tuple[int, int] | None = None,

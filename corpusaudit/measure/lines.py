@@ -140,17 +140,19 @@ def _fringes_to_their_lines(inner: np.ndarray, classes: np.ndarray, palette: lis
         padded[ys[moved] + FRINGE_REACH, xs[moved] + FRINGE_REACH] = owner[moved]
 
 
-def _blend_residual(colours: np.ndarray, source: np.ndarray, panel: np.ndarray, tolerance: float = 18.0) -> np.ndarray:
-    """Per colour (n, 3): distance from the sRGB segment between source and the panel (as
-    _between, for many colours at once); inf where the colour is not such a blend."""
-    direction = (panel - source).astype(np.float32)
+def _blend_residual(colours: np.ndarray, source: np.ndarray, panel: np.ndarray, tolerance: float = 18.0,
+                    share: tuple[float, float] = (0.05, 0.97)) -> np.ndarray:
+    """Per colour (n, 3): distance from the sRGB segment between source and the panel; inf
+    where the colour is not such a blend (farther than tolerance, or outside the share of
+    the way from source to panel). Computed in the colours' own float type."""
+    direction = (panel - source).astype(colours.dtype)
     length2 = float(direction @ direction)
     if length2 < 1:
         return np.full(len(colours), np.inf)
-    offset = colours - source.astype(np.float32)
+    offset = colours - source.astype(colours.dtype)
     t = offset @ direction / length2
     residual = np.linalg.norm(offset - t[:, None] * direction, axis=1)
-    return np.where((t >= 0.05) & (t <= 0.97) & (residual <= tolerance), residual, np.inf)
+    return np.where((t >= share[0]) & (t <= share[1]) & (residual <= tolerance), residual, np.inf)
 
 
 GRID_SHARE = 0.3  # a grid line fills at least this share of the plot's width (or height)
@@ -327,12 +329,9 @@ def _co_located(strokes: list[tuple[np.ndarray, np.ndarray]], panel: np.ndarray)
 
 def _between(colour: np.ndarray, source: np.ndarray, panel: np.ndarray, tolerance: float = 18.0) -> bool:
     """colour lies on the sRGB segment from source to the panel colour (a blend of the two)."""
-    direction = panel - source
-    length2 = float((direction ** 2).sum())
-    if length2 < 1:
-        return False
-    t = float(((colour - source) * direction).sum() / length2)
-    return 0.1 <= t <= 0.95 and float(np.linalg.norm(source + t * direction - colour)) <= tolerance
+    colours = np.atleast_2d(np.asarray(colour, dtype=np.float64))
+    return bool(np.isfinite(_blend_residual(colours, np.asarray(source, np.float64), np.asarray(panel, np.float64),
+                                            tolerance, (0.1, 0.95)))[0])
 
 
 @measurement("line_series")
