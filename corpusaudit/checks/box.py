@@ -34,17 +34,27 @@ from corpusaudit.model import Draft, Option, Outcome
     problem="""Box plots for nine invented monitoring stations in arbitrary order.""",
     better="""The boxes sorted by median, or kept in an order the groups have of their own.""",
     limitations="""Cannot know when groups have a natural order; the finding asks the author to consider sorting.
-        Vertical boxes only; on rasters the group labels come from text recognition and go unmeasured when not read.""",
+        Vertical and horizontal boxes (the group labels under the x axis or beside the y axis); on rasters the
+        group labels come from text recognition and go unmeasured when not read.""",
 )
 def box_order(ctx: CheckContext) -> Outcome:
     boxes = ctx.measure("boxes")
     if len(boxes) < 3 or monotone([b.median for b in boxes], ctx.options["tolerance"]):
         return Outcome()
     axes = ctx.measure("axes")
-    labels = labels_at([b.position for b in boxes], axes.x.ticks)
+    labels = labels_at([b.position for b in boxes], _category_ticks(ctx, boxes[0].orientation))
     if labels is None:
         return Outcome(unmeasured=True, reason="group labels not read")
     if natural_order(labels) or (not is_vector(ctx.figure) and natural_order([_ocr_digits(label) for label in labels])):
         return Outcome()
     return Outcome(findings=(Draft(message=f"{len(boxes)} boxes neither sorted by median nor in a natural order of their labels",
                                    value=", ".join(labels[:8]), threshold="sorted or natural order", region=axes.plot),))
+
+
+def _category_ticks(ctx: CheckContext, orientation: str):
+    """The group labels: under vertical boxes the x axis's, beside horizontal ones the y axis's. On rasters
+    the y labels are read one by one from their ink, as the x labels are (a strip read at once joins
+    or splits the words of multi-word labels)."""
+    if orientation == "vertical":
+        return ctx.measure("axes").x.ticks
+    return ctx.measure("axes").y.ticks if is_vector(ctx.figure) else ctx.measure("y_label_texts")

@@ -11,6 +11,8 @@ import re
 from dataclasses import dataclass, replace
 
 import numpy as np
+from scipy.sparse import coo_matrix
+from scipy.sparse.csgraph import connected_components
 
 from corpusaudit.measure import measurement
 from corpusaudit.measure.shapes import (
@@ -348,7 +350,7 @@ def _tick_length(ink: np.ndarray, plot: BBox, marks: dict[str, list[float]]) -> 
     for x in marks["x"]:
         column = ink[min(ink.shape[0] - 1, y1 + 2):y1 + 40, int(round(x))]
         lengths.append(int(np.argmin(column)) + 1 if column.size and not column.all() else 0)
-    return max(lengths, default=0) + 3
+    return max(lengths, default=0) + 1  # labels stand off their ticks by a padding of 2 px or more (common practice)
 
 
 def _raster_label_spans(rgb: np.ndarray, plot: BBox, reach: int, side: str) -> list[TextSpan]:
@@ -414,6 +416,13 @@ class LabelBlob:
 MIN_ELONGATION = 2.0  # ink spread along / across: text lines are long, single glyphs are not
 BASELINE_SEARCH = 12.0  # degrees either side of the rectangles' angle searched for the baseline
 GLYPH_GAP_SHARE = 0.45  # glyphs closer than this share of the glyph height belong to one label
+# Words of one label: an ink gap along the reading direction up to this share of the text's height
+# across it. A word space is 0.25-0.33 em and side bearings add ~0.1 em (Helvetica/Arial/DejaVu
+# metrics, from memory), against a text height (ascender to descender) of 0.7-0.95 em.
+WORD_GAP_SHARE = 1.0
+ACROSS_OVERLAP = 0.6  # words of one line share this share of the thinner one's extent across the line
+MAX_LABEL_LINES = 3  # a label wrapped onto more lines than this is not a tick label
+CROSSING_SINE = 0.5  # labels stand side by side across their reading direction when it meets the axis at 30 degrees or more
 
 
 def _fold(angle: float) -> float:
@@ -497,6 +506,90 @@ def _cut_off(ys: np.ndarray, xs: np.ndarray, angle: float | None, gap: float, sh
     return any(distance <= 1 + gap * run for distance, run in edges.values())
 
 
+def _text_sized(labels: np.ndarray, row: np.ndarray, image_height: int, glyph_height: float) -> bool:
+    """Whether a blob may be a label: at most 0.3 of the image tall, or a line of text however long
+    (a long label turned upright): no thicker across its length than MAX_LABEL_LINES glyphs."""
+    import cv2
+
+    index, bx, by, bw, bh, _ = (int(v) for v in row)
+    if bh <= 0.3 * image_height:
+        return True
+    ys, xs = np.nonzero(labels[by:by + bh, bx:bx + bw] == index)
+    _, (width, height), _ = cv2.minAreaRect(np.column_stack([xs, ys]).astype(np.float32))
+    return min(width, height) <= MAX_LABEL_LINES * glyph_height
+
+
+def _row_direction(ink: np.ndarray, labels: np.ndarray, stats: np.ndarray) -> float | None:
+    """The reading direction shared by the blobs of a row (degrees counter-clockwise, (-90, 90]):
+    the axial mean (angles doubled, so that 90 and -90 agree) of the directions of the blobs
+    long enough to show one, each weighted by its ink. None when no blob shows one."""
+    total = 0j
+    for index, bx, by, bw, bh, _ in stats:
+        mask = (labels[by:by + bh, bx:bx + bw] == index) & ink[by:by + bh, bx:bx + bw]
+        angle = _label_angle(mask, np.zeros((0, 2)))
+        if angle is not None:
+            total += np.count_nonzero(mask) * np.exp(2j * np.radians(angle))
+    if abs(total) == 0:
+        return None
+    return _fold(float(np.degrees(np.angle(total)) / 2))
+
+
+def _join_words(ink: np.ndarray, labels: np.ndarray, stats: np.ndarray,
+                side: str) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Blobs that are words of one label joined into one: (labels, stats, remap), remap taking an
+    old blob number to its label's.
+
+    Where labels stand side by side across their reading direction (rotated labels under the
+    x axis, level labels beside the y axis), a label's words lie on one line along it and its
+    neighbours on parallel lines: words are joined when they overlap across the line
+    (ACROSS_OVERLAP) and the gap along it is a word space (WORD_GAP_SHARE of the text height).
+    The gap along the reading direction and the offset across it are judged apart (an
+    isotropic reach that closed word spaces would also join neighbours set closer than a word
+    space across the line). Level labels along the x axis are collinear with their neighbours and
+    are grouped by their tick marks instead (labels_per_tick). Blobs much thicker across the line
+    than the row's text (an axis title set the other way) are not words of it.
+    """
+    remap = np.arange(labels.max() + 1)
+    angle = _row_direction(ink, labels, stats)
+    axis_direction = 0.0 if side == "x" else 90.0
+    if angle is None or len(stats) < 2 or abs(np.sin(np.radians(angle - axis_direction))) < CROSSING_SINE:
+        return labels, stats, remap
+    row = np.full(labels.max() + 1, -1)
+    row[stats[:, 0]] = np.arange(len(stats))
+    ys, xs = np.nonzero(ink)
+    member = row[labels[ys, xs]]
+    ys, xs, member = ys[member >= 0], xs[member >= 0], member[member >= 0]
+    theta = np.radians(angle)
+    along = xs * np.cos(theta) - ys * np.sin(theta)  # image rows run down
+    across = xs * np.sin(theta) + ys * np.cos(theta)
+    extents = []
+    for values in (along, across):
+        low, high = np.full(len(stats), np.inf), np.full(len(stats), -np.inf)
+        np.minimum.at(low, member, values)
+        np.maximum.at(high, member, values)
+        extents.append((low, high + 1.0))
+    (along0, along1), (across0, across1) = extents
+    thickness = across1 - across0
+    typical = float(np.median(thickness))
+    i, j = np.triu_indices(len(stats), k=1)
+    thin, thick = np.minimum(thickness[i], thickness[j]), np.maximum(thickness[i], thickness[j])
+    overlap = np.minimum(across1[i], across1[j]) - np.maximum(across0[i], across0[j])
+    gap = np.maximum(along0[j] - along1[i], along0[i] - along1[j])
+    joined = (overlap >= ACROSS_OVERLAP * thin) & (gap <= WORD_GAP_SHARE * thick) & (thick <= 1.5 * typical)
+    if not joined.any():
+        return labels, stats, remap
+    groups = connected_components(coo_matrix((np.ones(int(joined.sum())), (i[joined], j[joined])),
+                                             shape=(len(stats), len(stats))), directed=False)[1]
+    merged = []
+    for group in np.unique(groups):
+        rows = stats[groups == group]
+        x0, y0 = rows[:, 1].min(), rows[:, 2].min()
+        x1, y1 = (rows[:, 1] + rows[:, 3]).max(), (rows[:, 2] + rows[:, 4]).max()
+        remap[rows[:, 0]] = rows[0, 0]
+        merged.append((rows[0, 0], x0, y0, x1 - x0, y1 - y0, rows[:, 5].sum()))
+    return remap[labels], np.array(merged, dtype=stats.dtype), remap
+
+
 def raster_label_blobs(rgb: np.ndarray, plot: BBox, reach: int, side: str) -> tuple[LabelBlob, ...]:
     """Tick labels beside one axis as ink blobs with their reading direction, in order along the axis.
 
@@ -525,7 +618,7 @@ def raster_label_blobs(rgb: np.ndarray, plot: BBox, reach: int, side: str) -> tu
     disc = cv2.getStructuringElement(cv2.MORPH_ELLIPSE, (2 * radius + 1, 2 * radius + 1))
     merged = cv2.dilate(ink.astype(np.uint8), disc)
     labels, stats, _ = component_stats(merged, min_area=12)
-    stats = stats[stats[:, 4] <= 0.3 * rgb.shape[0]]
+    stats = stats[np.array([_text_sized(labels, row, rgb.shape[0], glyph_height) for row in stats], bool)]
     if len(stats) == 0:
         return ()
     owner_of = np.zeros(glyph_labels.max() + 1, int)  # the label each glyph belongs to
@@ -543,6 +636,8 @@ def raster_label_blobs(rgb: np.ndarray, plot: BBox, reach: int, side: str) -> tu
     stats = stats[texty & beside]
     if len(stats) == 0:
         return ()
+    labels, stats, remap = _join_words(ink, labels, stats, side)
+    owner = remap[owner]
     found = []
     for index, bx, by, bw, bh, _ in _label_row(stats, side, glyph_height):
         mask = (labels[by:by + bh, bx:bx + bw] == index) & ink[by:by + bh, bx:bx + bw]

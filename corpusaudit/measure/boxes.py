@@ -1,10 +1,13 @@
-"""Box plots: boxes with their medians, in order along the category axis (vertical boxes).
+"""Box plots: boxes with their medians, in order along the category axis.
 
-Vector: rectangles (stroked or filled) in the plot area that hold a horizontal median
-segment spanning their width and have a whisker at their centre. Raster: outlined boxes are
-three or more horizontal strokes of one width joined by vertical sides, the inner one the
-median; filled boxes are solid rectangles holding a full-width line of another colour;
-both need a whisker leaving the middle of the box.
+Described for vertical boxes (categories along x, values up y). Vector: rectangles (stroked
+or filled) in the plot area that hold a horizontal median segment spanning their width and
+have a whisker at their centre. Raster: outlined boxes are three or more horizontal strokes
+of one width joined by vertical sides, the inner one the median; filled boxes are solid
+rectangles holding a full-width line of another colour; both need a whisker leaving the
+middle of the box. Horizontal boxes (categories down y, values along x) are the same figure
+with x and y swapped, so they are found by the same steps on the transposed geometry; the
+orientation holding more boxes wins, vertical on a tie.
 """
 
 from __future__ import annotations
@@ -25,36 +28,63 @@ from corpusaudit.model import BBox, Figure, MeasurementUnavailable
 @dataclass(frozen=True)
 class Box:
     bbox: BBox
-    median: float  # y pixel of the median line
-    position: float  # x pixel of the box centre
+    median: float  # pixel of the median line along the value axis (y for vertical boxes, x for horizontal)
+    position: float  # pixel of the box centre along the category axis (x for vertical boxes, y for horizontal)
+    orientation: str = "vertical"  # "vertical" (boxes stand on the x axis) or "horizontal" (along the y axis)
 
 
 MEDIAN_BAR_PX = 4.0  # a filled bar at most this tall across a box is its median line
 
 
-def _vector_boxes(figure: Figure, plot: BBox, frames: list[BBox]) -> list[Box]:
-    segments = [(axis_aligned_segment(p), p.bbox) for p in figure.vector.paths]
+def _swap(box: BBox) -> BBox:
+    """A box with x and y swapped: a horizontal box plot turned into a vertical one."""
+    return (box[1], box[0], box[3], box[2])
+
+
+def _rectangle(path) -> bool:
+    """A rectangle: flagged so at extraction, or a polygon of four corners (a fifth closing it)
+    each within half a pixel of a corner of its box (rounding can split a corner's coordinates)."""
+    if path.is_rect:
+        return True
+    if not 4 <= len(path.points) <= 5:
+        return False
+    x0, y0, x1, y1 = path.bbox
+    return all(min(abs(x - x0), abs(x - x1)) <= 0.5 and min(abs(y - y0), abs(y - y1)) <= 0.5 for x, y in path.points) \
+        and len({(abs(x - x0) <= 0.5, abs(y - y0) <= 0.5) for x, y in path.points}) == 4
+
+
+_SWAPPED = {"h": "v", "v": "h", None: None}
+
+
+def _vector_boxes(figure: Figure, plot: BBox, frames: list[BBox], orientation: str) -> list[Box]:
+    """Boxes of one orientation, found in the frame of vertical boxes (horizontal ones swapped x-y)."""
+    vertical = orientation == "vertical"
+    turn = (lambda box: box) if vertical else _swap
+    plot, frames = turn(plot), [turn(frame) for frame in frames]
+    paths = [(axis_aligned_segment(p) if vertical else _SWAPPED[axis_aligned_segment(p)], turn(p.bbox), p)
+             for p in figure.vector.paths]
     # medians: stroked segments, or thin filled bars (how some libraries draw a median)
-    thin = [p.bbox for p in figure.vector.paths if p.is_rect and "f" in p.kind
-            and p.bbox[3] - p.bbox[1] <= MEDIAN_BAR_PX and p.bbox[2] - p.bbox[0] >= 2 * MEDIAN_BAR_PX]
-    horizontal = [b for d, b in segments if d == "h"] + thin
-    vertical = [b for d, b in segments if d == "v"]
-    boxes = []
-    for path in figure.vector.paths:
-        if not path.is_rect or intersect(path.bbox, plot) is None or in_any(path.bbox, frames):
+    thin = [b for _, b, p in paths if p.is_rect and "f" in p.kind
+            and b[3] - b[1] <= MEDIAN_BAR_PX and b[2] - b[0] >= 2 * MEDIAN_BAR_PX]
+    horizontal = [b for d, b, _ in paths if d == "h"] + thin
+    vertical_segments = [b for d, b, _ in paths if d == "v"]
+    found: list[tuple[BBox, float, float]] = []  # (box, median, middle) in the turned frame
+    for _, bbox, path in paths:
+        if not _rectangle(path) or intersect(bbox, plot) is None or in_any(bbox, frames):
             continue
-        if path.bbox[3] - path.bbox[1] <= MEDIAN_BAR_PX:
+        if bbox[3] - bbox[1] <= MEDIAN_BAR_PX:
             continue  # a median bar, not a box
-        x0, y0, x1, y1 = path.bbox
-        if bbox_area(path.bbox) > 0.5 * bbox_area(plot) or x1 - x0 < 2:
+        x0, y0, x1, y1 = bbox
+        if bbox_area(bbox) > 0.5 * bbox_area(plot) or x1 - x0 < 2:
             continue
         medians = [b for b in horizontal if abs(b[0] - x0) <= 1.5 and abs(b[2] - x1) <= 1.5 and y0 - 0.5 <= b[1] <= y1 + 0.5]
         middle = (x0 + x1) / 2
-        whiskers = [b for b in vertical if abs(b[0] - middle) <= 1.5 and (abs(b[3] - y0) <= 1.5 or abs(b[1] - y1) <= 1.5)]
+        whiskers = [b for b in vertical_segments
+                    if abs(b[0] - middle) <= 1.5 and (abs(b[3] - y0) <= 1.5 or abs(b[1] - y1) <= 1.5)]
         # A box filled and outlined as two paths is one box.
-        if medians and whiskers and not any(max(abs(a - b) for a, b in zip(box.bbox, path.bbox)) <= 1.0 for box in boxes):
-            boxes.append(Box(bbox=path.bbox, median=(medians[0][1] + medians[0][3]) / 2, position=middle))
-    return boxes
+        if medians and whiskers and not any(max(abs(a - b) for a, b in zip(box, bbox)) <= 1.0 for box, _, _ in found):
+            found.append((bbox, (medians[0][1] + medians[0][3]) / 2, middle))
+    return [Box(bbox=turn(box), median=median, position=middle, orientation=orientation) for box, median, middle in found]
 
 
 def _horizontal_segments(ink: np.ndarray, min_length: int) -> list[tuple[int, int, float]]:
@@ -142,30 +172,42 @@ def _has_whisker(ink: np.ndarray, bx: int, by: int, bw: int, bh: int) -> bool:
     return bool(bottom_ink.any() or top_ink.any())
 
 
-def _raster_boxes(rgb: np.ndarray, plot: BBox) -> list[Box]:
+def _raster_boxes(rgb: np.ndarray, plot: BBox, orientation: str) -> list[Box]:
+    """Boxes of one orientation on a raster, found in the frame of vertical boxes (horizontal ones transposed)."""
     x0, y0, x1, y1 = (int(round(v)) for v in plot)
     inner = np.ascontiguousarray(rgb[y0 + 2:y1 - 1, x0 + 2:x1 - 1])
     if inner.size == 0:
         raise MeasurementUnavailable("empty plot area")
     panel = background_rgb(inner)
     ink = (colour_distance(inner, panel) > 80).astype(np.uint8)  # light grid lines stay out
+    vertical = orientation == "vertical"
+    if not vertical:
+        inner, ink = np.ascontiguousarray(inner.transpose(1, 0, 2)), np.ascontiguousarray(ink.T)
+    # the plot's corner in the turned frame, where the boxes' coordinates start
+    left, top = (x0 + 2, y0 + 2) if vertical else (y0 + 2, x0 + 2)
     candidates = _outlined_boxes(inner, ink) + _filled_boxes(inner, ink)
     unique: list[Box] = []
     for box, median in sorted(candidates, key=lambda c: -bbox_area(c[0])):  # outline and fill of one box: keep one
-        shifted = (box[0] + x0 + 2, box[1] + y0 + 2, box[2] + x0 + 2, box[3] + y0 + 2)
+        shifted = (box[0] + left, box[1] + top, box[2] + left, box[3] + top)
         position = (shifted[0] + shifted[2]) / 2
         if not any(abs(position - other.position) < 3 for other in unique):
-            unique.append(Box(bbox=shifted, median=median + y0 + 2, position=position))
+            unique.append(Box(bbox=shifted if vertical else _swap(shifted), median=median + top, position=position,
+                              orientation=orientation))
     return unique
 
 
 @measurement("boxes")
 def boxes(figure: Figure, measurements) -> list[Box]:
+    """The boxes of a box plot in order along the category axis, all of one orientation."""
     plot = measurements.get("plot_area")
-    if is_vector(figure):
-        found = _vector_boxes(figure, plot, measurements.get("legend_boxes"))
-    else:
-        found = _raster_boxes(require_pixels(figure), plot)
+    found: list[Box] = []
+    for orientation in ("vertical", "horizontal"):  # more boxes wins; vertical on a tie
+        if is_vector(figure):
+            candidates = _vector_boxes(figure, plot, measurements.get("legend_boxes"), orientation)
+        else:
+            candidates = _raster_boxes(require_pixels(figure), plot, orientation)
+        if len(candidates) > len(found):
+            found = candidates
     if len(found) < 2:
         raise MeasurementUnavailable("fewer than two boxes found")
     return sorted(found, key=lambda b: b.position)
