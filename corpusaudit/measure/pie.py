@@ -107,10 +107,15 @@ def _rim_circle(points: np.ndarray) -> tuple[tuple[float, float], float]:
 WEDGE_MIN_EXTENT = 0.1  # a wedge's box spans at least this share of the largest wedge's
 
 
+MAX_WEDGES = 360  # one per degree: a narrower wedge is no visible slice (a scatter's markers are no pie)
+
+
 def _vector_pie(figure: Figure, frames: list[BBox]) -> Pie:
-    candidates = [p for p in figure.vector.paths
-                  if "f" in p.kind and not p.is_rect and len(p.points) >= 6 and p.fill is not None
-                  and not in_any(p.bbox, frames)]
+    shapes = [p for p in figure.vector.paths
+              if "f" in p.kind and not p.is_rect and len(p.points) >= 6 and p.fill is not None]
+    if len(shapes) > MAX_WEDGES:
+        raise MeasurementUnavailable(f"{len(shapes)} filled shapes: too many for the wedges of a pie")
+    candidates = [p for p in shapes if not in_any(p.bbox, frames)]
     # Legend symbols without a frame (small circles) are no wedges: even a thin wedge spans
     # from the centre (or the hole) to the rim, a good share of the largest wedge's extent.
     extent = [max(p.bbox[2] - p.bbox[0], p.bbox[3] - p.bbox[1]) for p in candidates]
@@ -153,8 +158,12 @@ def _wedge_circle(points: np.ndarray) -> tuple[tuple[float, float], float] | Non
     step = np.hypot(*np.diff(np.vstack([points, points[:1]]), axis=0).T)
     apex_index = int(np.argmax(np.minimum(step, np.roll(step, 1))))
     apex = points[apex_index]
-    arc = points[np.hypot(points[:, 0] - apex[0], points[:, 1] - apex[1]) > 1e-6]
-    if len(arc) < 3:
+    reach = np.hypot(points[:, 0] - apex[0], points[:, 1] - apex[1])
+    arc = points[reach > 1e-6]
+    # The tests below put every arc point within 4% of the radius from the apex; a shape
+    # whose points lie at very different distances from its apex (a marker, a bar) fails
+    # here without a circle fit.
+    if len(arc) < 3 or reach[reach > 1e-6].min() < 0.9 * reach.max():
         return None
     centre, radius = _fit_circle(arc)
     residual = np.abs(np.hypot(arc[:, 0] - centre[0], arc[:, 1] - centre[1]) - radius)
