@@ -172,14 +172,18 @@ def _has_whisker(ink: np.ndarray, bx: int, by: int, bw: int, bh: int) -> bool:
     return bool(bottom_ink.any() or top_ink.any())
 
 
-def _raster_boxes(rgb: np.ndarray, plot: BBox, orientation: str) -> list[Box]:
-    """Boxes of one orientation on a raster, found in the frame of vertical boxes (horizontal ones transposed)."""
+def _raster_plot_ink(rgb: np.ndarray, plot: BBox) -> tuple[np.ndarray, np.ndarray]:
+    """The plot's inside and its ink mask (light grid lines stay out)."""
     x0, y0, x1, y1 = (int(round(v)) for v in plot)
     inner = np.ascontiguousarray(rgb[y0 + 2:y1 - 1, x0 + 2:x1 - 1])
     if inner.size == 0:
         raise MeasurementUnavailable("empty plot area")
-    panel = background_rgb(inner)
-    ink = (colour_distance(inner, panel) > 80).astype(np.uint8)  # light grid lines stay out
+    return inner, (colour_distance(inner, background_rgb(inner)) > 80).astype(np.uint8)
+
+
+def _raster_boxes(inner: np.ndarray, ink: np.ndarray, plot: BBox, orientation: str) -> list[Box]:
+    """Boxes of one orientation on a raster, found in the frame of vertical boxes (horizontal ones transposed)."""
+    x0, y0 = (int(round(v)) for v in plot[:2])
     vertical = orientation == "vertical"
     if not vertical:
         inner, ink = np.ascontiguousarray(inner.transpose(1, 0, 2)), np.ascontiguousarray(ink.T)
@@ -200,12 +204,15 @@ def _raster_boxes(rgb: np.ndarray, plot: BBox, orientation: str) -> list[Box]:
 def boxes(figure: Figure, measurements) -> list[Box]:
     """The boxes of a box plot in order along the category axis, all of one orientation."""
     plot = measurements.get("plot_area")
+    vector = is_vector(figure)
+    if vector:
+        frames = measurements.get("legend_boxes")
+    else:  # the ink is found once, searched in both orientations
+        inner, ink = _raster_plot_ink(require_pixels(figure), plot)
     found: list[Box] = []
     for orientation in ("vertical", "horizontal"):  # more boxes wins; vertical on a tie
-        if is_vector(figure):
-            candidates = _vector_boxes(figure, plot, measurements.get("legend_boxes"), orientation)
-        else:
-            candidates = _raster_boxes(require_pixels(figure), plot, orientation)
+        candidates = (_vector_boxes(figure, plot, frames, orientation) if vector
+                      else _raster_boxes(inner, ink, plot, orientation))
         if len(candidates) > len(found):
             found = candidates
     if len(found) < 2:

@@ -159,11 +159,12 @@ def _wedge_circle(points: np.ndarray) -> tuple[tuple[float, float], float] | Non
     apex_index = int(np.argmax(np.minimum(step, np.roll(step, 1))))
     apex = points[apex_index]
     reach = np.hypot(points[:, 0] - apex[0], points[:, 1] - apex[1])
-    arc = points[reach > 1e-6]
+    off_apex = reach > 1e-6
+    arc = points[off_apex]
     # The tests below put every arc point within 4% of the radius from the apex; a shape
     # whose points lie at very different distances from its apex (a marker, a bar) fails
     # here without a circle fit.
-    if len(arc) < 3 or reach[reach > 1e-6].min() < 0.9 * reach.max():
+    if len(arc) < 3 or reach[off_apex].min() < 0.9 * reach.max():
         return None
     centre, radius = _fit_circle(arc)
     residual = np.abs(np.hypot(arc[:, 0] - centre[0], arc[:, 1] - centre[1]) - radius)
