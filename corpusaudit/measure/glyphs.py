@@ -23,7 +23,7 @@ its ink and background have, not what it says, so no text recognition is needed.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import cv2
 import numpy as np
@@ -105,6 +105,14 @@ class _Components:
     contrast: np.ndarray  # uint8 contrast image of that polarity
     dark: bool
     max_height: float  # tallest glyph taken for text, px
+    shapes: dict[int, np.ndarray] = field(default_factory=dict)  # _shape of each component, once
+
+    def member_mask(self, labels: np.ndarray, members: np.ndarray) -> np.ndarray:
+        """Which pixels of labels (a window of self.labels) belong to the members."""
+        ids = self.ids[members]
+        wanted = np.zeros(max(int(labels.max()), int(ids.max())) + 1, dtype=bool)
+        wanted[ids] = True
+        return wanted[labels]
 
 
 def local_background(grey: np.ndarray) -> np.ndarray:
@@ -215,13 +223,17 @@ def _union_find(n: int, first: np.ndarray, second: np.ndarray) -> np.ndarray:
 
 def _shape(parts: _Components, k: int) -> np.ndarray:
     """A component's contrast in its box, blurred by a pixel (so the same mark at another
-    sub-pixel offset still matches) and resampled to SHAPE_PX square, zero mean, unit norm."""
+    sub-pixel offset still matches) and resampled to SHAPE_PX square, zero mean, unit norm.
+    Lines are tried in several orientations, so each component's shape is kept."""
+    if k in parts.shapes:
+        return parts.shapes[k]
     x0, y0, x1, y1 = parts.x0[k], parts.y0[k], parts.x1[k], parts.y1[k]
     own = parts.labels[y0:y1, x0:x1] == parts.ids[k]
     patch = np.pad(np.where(own, parts.contrast[y0:y1, x0:x1], 0).astype(np.float32), 2)
     patch = cv2.resize(cv2.GaussianBlur(patch, (0, 0), 1.0), (SHAPE_PX, SHAPE_PX), interpolation=cv2.INTER_AREA)
     patch -= patch.mean()
-    return patch / max(float(np.linalg.norm(patch)), 1e-6)
+    parts.shapes[k] = patch / max(float(np.linalg.norm(patch)), 1e-6)
+    return parts.shapes[k]
 
 
 def _repeated_marks(parts: _Components, members: np.ndarray) -> bool:
@@ -325,7 +337,7 @@ def _colours(rgb: np.ndarray, parts: _Components, members: np.ndarray, box: tupl
     x0, y0, x1, y1 = box
     X0, Y0, X1, Y1 = max(0, x0 - pad), max(0, y0 - pad), min(width, x1 + pad), min(height, y1 + pad)
     labels = parts.labels[Y0:Y1, X0:X1]
-    ink_mask = np.isin(labels, parts.ids[members])
+    ink_mask = parts.member_mask(labels, members)
     near_ink = cv2.dilate((labels > 0).view(np.uint8), np.ones((3, 3), np.uint8)).astype(bool)
     patch = rgb[Y0:Y1, X0:X1]
     surround = patch[~near_ink]
