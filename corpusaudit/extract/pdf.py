@@ -8,7 +8,6 @@ pixels are those of the page as displayed (/Rotate applied).
 
 from __future__ import annotations
 
-import functools
 import math
 import re
 
@@ -17,8 +16,8 @@ import pymupdf
 
 from corpusaudit.extract import ExtractConfig, ExtractError, ExtractResult
 from corpusaudit.extract.captions import Caption, TextLine, assign_captions, caption_candidates
-from corpusaudit.extract.raster import (FULL_PAGE_SHARE, PieceGroup, group_pieces, page_share, placement_key, placements,
-                                        repeated_keys, visible_characters)
+from corpusaudit.extract.raster import (FULL_PAGE_SHARE, PieceGroup, group_pieces, image_infos, page_share,
+                                        placement_key, placements, repeated_keys, visible_characters)
 from corpusaudit.extract.regions import (SCATTER_MERGE_PT, Region, attach_labels, attach_titles, group_ink, label_like,
                                          merge_overlapping, union, vector_verdict)
 from corpusaudit.extract.scan import figure_boxes
@@ -103,19 +102,22 @@ class _Page:
     """One page's reading: everything is read once and shared by the steps."""
 
     def __init__(self, pdf: pymupdf.Document, page: pymupdf.Page, number: int, doc: Document,
-                 config: ExtractConfig, pattern: re.Pattern):
+                 config: ExtractConfig, pattern: re.Pattern, display: pymupdf.DisplayList | None = None):
         self.pdf, self.page, self.number, self.doc, self.config, self.pattern = pdf, page, number, doc, config, pattern
+        self._display = display
         self.bounds = pymupdf.Rect(0, 0, page.cropbox.width, page.cropbox.height)
         self.rotation = page.rotation_matrix
-        self.text = read_text(page)
+        self.text = read_text(page, self.display)
         self.lines = text_lines(self.text)
         self.captions = caption_candidates(self.lines, pattern)
         self.errors: list[str] = []
 
-    @functools.cached_property
+    @property
     def display(self) -> pymupdf.DisplayList:
-        """The page's drawing commands, interpreted once however many figures are rendered."""
-        return self.page.get_displaylist()
+        """The page's drawing commands, interpreted once for its text, images and renders."""
+        if self._display is None:
+            self._display = self.page.get_displaylist()
+        return self._display
 
     def shown(self, rect: pymupdf.Rect) -> pymupdf.Rect:
         return pymupdf.Rect(rect) * self.rotation
@@ -449,6 +451,20 @@ def render_page_view(display: pymupdf.DisplayList, longest_px: int) -> np.ndarra
     return _rgb(pix)
 
 
+def _display_list(page: pymupdf.Page) -> pymupdf.DisplayList:
+    """The page's display list. MuPDF only warns when it cannot load a content stream (a
+    truncated or damaged file) and goes on with a blank page: that page is an error here."""
+    pymupdf.TOOLS.reset_mupdf_warnings()
+    display = page.get_displaylist()
+    lost = [line for line in pymupdf.TOOLS.mupdf_warnings().splitlines() if line.startswith("cannot load content stream")]
+    if lost:
+        raise ExtractError(f"{lost[0]}: the file is damaged or truncated")
+    return display
+
+
+KEPT_DISPLAYS = 16  # display lists kept from the first pass for the pages read next: memory stays bounded
+
+
 def extract_pdf(doc: Document, config: ExtractConfig, pages: tuple[int, int] | None = None,
                 page_view_px: int = 0) -> ExtractResult:
     """Figures of every page, or of pages first..last; repeated images are judged over the whole document.
@@ -460,11 +476,15 @@ def extract_pdf(doc: Document, config: ExtractConfig, pages: tuple[int, int] | N
     try:
         # First pass: every page's image placements, to know the images repeated across pages.
         infos: list[list[dict] | None] = []
+        kept: dict[int, pymupdf.DisplayList] = {}
         for number in range(1, pdf.page_count + 1):
             try:
                 page = pdf[number - 1]
                 result.page_sizes[number] = (round(page.rect.width, 2), round(page.rect.height, 2))
-                infos.append(page.get_image_info(xrefs=True))
+                display = _display_list(page)
+                infos.append(image_infos(pdf, page, display))
+                if first <= number <= last and len(kept) < KEPT_DISPLAYS:
+                    kept[number] = display
             except Exception as exc:  # a malformed page must not stop the document
                 infos.append(None)
                 result.errors.append(f"page {number}: {_reason(exc)}")
@@ -475,7 +495,7 @@ def extract_pdf(doc: Document, config: ExtractConfig, pages: tuple[int, int] | N
             if info is None or not first <= number <= last:
                 continue
             try:
-                reading = _Page(pdf, pdf[number - 1], number, doc, config, pattern)
+                reading = _Page(pdf, pdf[number - 1], number, doc, config, pattern, kept.pop(number, None))
                 figures, decorations = _page_figures(reading, info, repeated)
             except Exception as exc:  # a malformed page must not stop the document
                 result.errors.append(f"page {number}: {_reason(exc)}")

@@ -9,12 +9,15 @@ tiny icons and full-page backgrounds behind text are decorations.
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass, field
 
 import numpy as np
 import pymupdf
 from scipy.sparse import coo_matrix
 from scipy.sparse.csgraph import connected_components
+
+from corpusaudit.extract.vector_evidence import unrotated_display
 
 ABUT_TOLERANCE_PT = 1.5  # tiles written with rounded coordinates leave hairline gaps
 REPEATED_PAGE_SHARE = 0.6  # an image on this share of pages (3+) is a running logo or header
@@ -71,6 +74,46 @@ class PieceGroup:
             "filter": xref_filter(main.xref), "rotation": main.rotation, "flipped": main.flipped,
             "pieces": len(self.pieces), "inline": main.xref == 0,
         }
+
+
+_INLINE_IMAGE = re.compile(rb"(?:^|\s)BI\s")
+
+
+def _has_inline_images(pdf: pymupdf.Document, page: pymupdf.Page) -> bool:
+    """Whether the page's content or its forms may hold an inline image (a false alarm costs time only)."""
+    if _INLINE_IMAGE.search(page.read_contents()):
+        return True
+    return any(pdf.xref_get_key(xref, "Subtype")[1] == "/Form" and _INLINE_IMAGE.search(pdf.xref_stream(xref) or b"")
+               for xref, *_ in page.get_xobjects())
+
+
+def image_infos(pdf: pymupdf.Document, page: pymupdf.Page, display: pymupdf.DisplayList | None = None) -> list[dict]:
+    """Page.get_image_info(xrefs=True) without its cost where the answer is plain, read from
+    the page's display list where unrotated_display allows.
+
+    PyMuPDF finds each placement's xref by hashing the decoded pixels of every placement and of
+    every image the page lists, most of the time of reading a page. When the page has no inline
+    image and each placement's pixel size belongs to exactly one listed image, that image is the
+    placement's; otherwise the hashes decide, as PyMuPDF does.
+    """
+    display = unrotated_display(page, display)
+    if display is None:
+        textpage = page.get_textpage(flags=pymupdf.TEXT_PRESERVE_IMAGES)
+    else:
+        textpage = pymupdf.TextPage(display.get_textpage(flags=pymupdf.TEXT_PRESERVE_IMAGES))
+    infos = textpage.extractIMGINFO(hashes=False)
+    del textpage
+    if not infos:
+        return infos
+    by_size: dict[tuple[int, int], set[int]] = {}
+    for xref, _smask, width, height, *_ in page.get_images(full=True):
+        by_size.setdefault((int(width), int(height)), set()).add(int(xref))
+    owners = [by_size.get((int(info["width"]), int(info["height"])), set()) for info in infos]
+    if any(len(xrefs) != 1 for xrefs in owners) or _has_inline_images(pdf, page):
+        return page.get_image_info(xrefs=True)
+    for info, xrefs in zip(infos, owners):
+        info["xref"] = next(iter(xrefs))
+    return infos
 
 
 def placements(page: pymupdf.Page, infos: list[dict]) -> list[Placement]:
