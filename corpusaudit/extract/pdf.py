@@ -21,7 +21,7 @@ from corpusaudit.extract.raster import (FULL_PAGE_SHARE, PieceGroup, group_piece
 from corpusaudit.extract.regions import (SCATTER_MERGE_PT, Region, attach_labels, attach_titles, group_ink, label_like,
                                          merge_overlapping, union, vector_verdict)
 from corpusaudit.extract.scan import figure_boxes
-from corpusaudit.extract.vector_evidence import read_drawings, read_text, vector_evidence
+from corpusaudit.extract.vector_evidence import fast_rect, read_drawings, read_text, vector_evidence
 from corpusaudit.model import Document, Figure
 
 pymupdf.TOOLS.mupdf_display_errors(False)
@@ -165,7 +165,7 @@ def visible_drawings(page: pymupdf.Page) -> list[dict]:
         while clips and clips[-1][0] >= level:
             clips.pop()
         if entry["type"] == "clip":
-            scissor = pymupdf.Rect(entry["scissor"])
+            scissor = fast_rect(*entry["scissor"])
             graphic = clips[-1][2] if clips else None
             if clips:
                 scissor = None if clips[-1][1] is None else _cut(scissor, clips[-1][1])
@@ -191,7 +191,7 @@ def _cut(rect: pymupdf.Rect, clip: pymupdf.Rect) -> pymupdf.Rect | None:
     x0, y0, x1, y1 = max(rect.x0, clip.x0), max(rect.y0, clip.y0), min(rect.x1, clip.x1), min(rect.y1, clip.y1)
     if x0 > x1 or y0 > y1:
         return None
-    return pymupdf.Rect(x0, y0, x1, y1)
+    return fast_rect(x0, y0, x1, y1)
 
 
 def panel_letter(box: pymupdf.Rect, lines: list[TextLine]) -> str:

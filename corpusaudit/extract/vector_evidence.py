@@ -102,6 +102,14 @@ def _all_path_points(drawings: list[dict], matrix: pymupdf.Matrix) -> list[list[
     return [kept[bounds[i]:bounds[i + 1]] for i in range(len(drawings))]
 
 
+def fast_rect(x0: float, y0: float, x1: float, y1: float) -> pymupdf.Rect:
+    """pymupdf.Rect(x0, y0, x1, y1) without its general argument parsing, about eight times
+    faster: a scatter plot's page has tens of thousands of paths, each with rects."""
+    rect = pymupdf.Rect.__new__(pymupdf.Rect)
+    rect.x0, rect.y0, rect.x1, rect.y1 = float(x0), float(y0), float(x1), float(y1)
+    return rect
+
+
 _PATH_KEYS = ("closePath", "fill", "color", "width", "lineCap", "lineJoin", "dashes", "stroke_opacity",
               "fill_opacity", "even_odd")
 
@@ -115,11 +123,11 @@ def read_drawings(page: pymupdf.Page, extended: bool = False) -> list[dict]:
     for drawing in drawings:
         kind = drawing["type"]
         if kind.startswith("clip"):
-            drawing["scissor"] = pymupdf.Rect(drawing["scissor"])
+            drawing["scissor"] = fast_rect(*drawing["scissor"])
         else:
-            drawing["rect"] = pymupdf.Rect(drawing["rect"])
+            drawing["rect"] = fast_rect(*drawing["rect"])
         if kind != "group":
-            drawing["items"] = [("re", pymupdf.Rect(item[1]).normalize(), item[2]) if item[0] == "re"
+            drawing["items"] = [("re", fast_rect(*item[1]).normalize(), item[2]) if item[0] == "re"
                                 else ("qu", pymupdf.Quad(item[1])) if item[0] == "qu" else item
                                 for item in drawing["items"]]
         if kind in ("f", "s"):

@@ -862,26 +862,35 @@ def _largest_channel(image: np.ndarray) -> np.ndarray:
     return np.maximum(np.maximum(image[..., 0], image[..., 1]), image[..., 2])
 
 
+def _bar_candidates(rgb_uint8: np.ndarray, not_background: np.ndarray, axis: int, cross_tolerance: int) -> np.ndarray:
+    """uint8 mask of the pixels that do not change across axis (1: along x, for vertical
+    bars; 0: along y) and are not the background."""
+    import cv2
+
+    if axis == 1:
+        across = _largest_channel(cv2.absdiff(rgb_uint8[:, 1:], rgb_uint8[:, :-1])) <= cross_tolerance
+        constant = np.zeros(rgb_uint8.shape[:2], dtype=bool)
+        constant[:, 1:-1] = across[:, :-1] & across[:, 1:]
+    else:
+        across = _largest_channel(cv2.absdiff(rgb_uint8[1:], rgb_uint8[:-1])) <= cross_tolerance
+        constant = np.zeros(rgb_uint8.shape[:2], dtype=bool)
+        constant[1:-1] = across[:-1] & across[1:]
+    return (constant & not_background).view(np.uint8)
+
+
 def _bars_along_columns(
     rgb_uint8: np.ndarray,
-    background: np.ndarray,
+    candidate: np.ndarray,
     min_length: int,
     min_aspect: float,
-    cross_tolerance: int,
 ) -> list[tuple[tuple[int, int, int, int], np.ndarray]]:
-    """Vertical bars: regions constant across x whose colour walks smoothly along y.
-
-    Candidates are found on the 8-bit pixels; only their strips are converted to CIELAB.
+    """Vertical bars: regions constant across x (candidate, from _bar_candidates) whose
+    colour walks smoothly along y. rgb_uint8 may be a transposed view: only the candidates'
+    strips are read from it, and only they are converted to CIELAB.
     """
     import cv2
 
-    across = _largest_channel(cv2.absdiff(rgb_uint8[:, 1:], rgb_uint8[:, :-1])) <= cross_tolerance
-    constant = np.zeros(rgb_uint8.shape[:2], dtype=bool)
-    constant[:, 1:-1] = across[:, :-1] & across[:, 1:]
-    red, green, blue = (float(v) for v in background)
-    not_background = _largest_channel(cv2.absdiff(rgb_uint8, (red, green, blue, 0.0))) > cross_tolerance
-    candidate = (constant & not_background).astype(np.uint8)
-    n_labels, labels, stats, _ = cv2.connectedComponentsWithStats(candidate, connectivity=4)
+    n_labels, labels, stats, _ = cv2.connectedComponentsWithStats(np.ascontiguousarray(candidate), connectivity=4)
     heights = stats[:, cv2.CC_STAT_HEIGHT]
     tall = np.flatnonzero((heights >= min_length) & (heights >= min_aspect * 3))
 
@@ -898,7 +907,7 @@ def _bars_along_columns(
         inside = inside[:, columns[0] : columns[-1] + 1]
         if h < min_aspect * (w + 2) or inside.mean() < 0.9:
             continue
-        strip = srgb_to_lab(rgb_uint8[y : y + h, x : x + w])
+        strip = srgb_to_lab(np.ascontiguousarray(rgb_uint8[y : y + h, x : x + w]))
         # Mean colour of each row over the bar's own pixels (the whole row where it has none).
         counts = inside.sum(axis=1)
         weights = np.where(counts[:, None] > 0, inside, True).astype(strip.dtype)
@@ -937,12 +946,17 @@ def find_colour_scales(
     cells that happens to be sorted looks like a discrete bar.
     """
     _check_image(rgb_uint8, None)
-    background = np.round(np.array(estimate_background(rgb_uint8)) * 255.0).astype(np.int16)
+    import cv2
+
+    red, green, blue = (float(v) for v in np.round(np.array(estimate_background(rgb_uint8)) * 255.0))
+    not_background = _largest_channel(cv2.absdiff(rgb_uint8, (red, green, blue, 0.0))) > cross_tolerance
     scales = []
-    for orientation, image in (("vertical", rgb_uint8), ("horizontal", rgb_uint8.transpose(1, 0, 2))):
-        for (c0, r0, c1, r1), colours in _bars_along_columns(
-            np.ascontiguousarray(image), background, min_length, min_aspect, cross_tolerance
-        ):
+    # Horizontal bars are vertical ones of the transposed image; only the mask is transposed.
+    for orientation, image, candidate in (
+        ("vertical", rgb_uint8, _bar_candidates(rgb_uint8, not_background, 1, cross_tolerance)),
+        ("horizontal", rgb_uint8.transpose(1, 0, 2), _bar_candidates(rgb_uint8, not_background, 0, cross_tolerance).T),
+    ):
+        for (c0, r0, c1, r1), colours in _bars_along_columns(image, candidate, min_length, min_aspect):
             if orientation == "vertical":
                 bbox = (c0, r0, c1, r1)
                 colours = colours[::-1]  # bottom to top
