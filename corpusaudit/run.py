@@ -3,6 +3,7 @@ store each document's result as it finishes, and write the reports from the stor
 
 from __future__ import annotations
 
+import contextlib
 import csv
 import dataclasses
 import functools
@@ -31,7 +32,7 @@ from corpusaudit.report.html import write_report
 from corpusaudit.report.tables import write_json, write_tables
 from corpusaudit.rows import document_row, figure_row, finding_row
 from corpusaudit.store import cached_document, load_rows, open_store, rename_document, save_document
-from corpusaudit.workers import Failure, run_pool
+from corpusaudit.workers import Failure, run_pool, single_threaded_libraries
 
 log = logging.getLogger(__name__)
 THUMBNAIL_PX = 360
@@ -130,6 +131,28 @@ def _vector_pie(figure: Figure, measurements: Measurements) -> bool:
         return False
     # The circle must fill the figure: wedges inside a larger drawing (a panel of it) do not decide.
     return len(pie.slices) >= 2 and (2 * pie.radius) ** 2 >= 0.25 * figure.width_px * figure.height_px
+
+
+def _warm_up_before_forking() -> None:
+    """Load here what every worker forked from this process would otherwise load on its first
+    document (a new worker every 25 documents): the model (about 1 s), the extraction modules
+    imported on demand, Pillow's image plugins, the text recogniser's library, and one
+    prediction for scikit-learn's and threadpoolctl's first-call set-up (about 0.2 s in all)."""
+    import PIL.Image
+
+    import corpusaudit.extract.images  # noqa: F401
+    import corpusaudit.extract.pdf  # noqa: F401
+
+    PIL.Image.init()
+    with contextlib.suppress(ImportError):
+        import tesserocr  # noqa: F401  (its engine is made per process: measure/text.py)
+    try:
+        classifier = _classifier()
+    except ModelIntegrityError:
+        return  # each worker meets the same error and records it on its documents
+    if classifier is not None:
+        with single_threaded_libraries():  # as in the workers: no OpenMP threads before the fork
+            classifier.predict(np.full((64, 64, 3), 255, np.uint8))
 
 
 @functools.cache
@@ -322,10 +345,7 @@ def _results(docs: list[Document], config: Config, options: RunOptions,
         summary.peak_worker_rss = max(summary.peak_worker_rss, rss)
         summary.worker_peaks.append(rss)
 
-    try:  # loaded once here, workers forked from this process share it (about 1 s each otherwise)
-        _classifier()
-    except ModelIntegrityError:
-        pass  # each worker meets the same error and records it on its documents
+    _warm_up_before_forking()
     tasks, expected = [], {}
     for doc in docs:
         ranges = page_ranges(doc, options.chunk_pages)
