@@ -102,12 +102,15 @@ class _Page:
     """One page's reading: everything is read once and shared by the steps."""
 
     def __init__(self, pdf: pymupdf.Document, page: pymupdf.Page, number: int, doc: Document,
-                 config: ExtractConfig, pattern: re.Pattern, display: pymupdf.DisplayList | None = None):
+                 config: ExtractConfig, pattern: re.Pattern, estimated_paths: int,
+                 display: pymupdf.DisplayList | None = None):
         self.pdf, self.page, self.number, self.doc, self.config, self.pattern = pdf, page, number, doc, config, pattern
+        self.estimated_paths = estimated_paths
         self._display = display
         self.bounds = pymupdf.Rect(0, 0, page.cropbox.width, page.cropbox.height)
         self.rotation = page.rotation_matrix
-        self.text = read_text(page, self.display)
+        # A page of more paths than are searched is read directly: its display list is large.
+        self.text = read_text(page, self.display if estimated_paths <= config.max_paths_per_page else self._display)
         self.lines = text_lines(self.text)
         self.captions = caption_candidates(self.lines, pattern)
         self.errors: list[str] = []
@@ -350,7 +353,7 @@ def _page_figures(reading: _Page, infos: list[dict], repeated: set[tuple]) -> tu
         pictures = [g for g in pictures if g not in full]
 
     # Reading drawings costs ~25 us a path: count painting operators in the raw streams first.
-    paths = estimated_paths(reading.pdf, page)
+    paths = reading.estimated_paths
     drawings = visible_drawings(page) if paths <= config.max_paths_per_page else []
     paths = max(paths, len(drawings))
     if paths > config.max_paths_per_page:
@@ -477,13 +480,16 @@ def extract_pdf(doc: Document, config: ExtractConfig, pages: tuple[int, int] | N
         # First pass: every page's image placements, to know the images repeated across pages.
         infos: list[list[dict] | None] = []
         kept: dict[int, pymupdf.DisplayList] = {}
+        paths: dict[int, int] = {}
         for number in range(1, pdf.page_count + 1):
             try:
                 page = pdf[number - 1]
                 result.page_sizes[number] = (round(page.rect.width, 2), round(page.rect.height, 2))
-                display = _display_list(page)
+                paths[number] = estimated_paths(pdf, page)
+                # A page of more paths than are searched gets no display list unless it is rendered.
+                display = _display_list(page) if paths[number] <= config.max_paths_per_page else None
                 infos.append(image_infos(pdf, page, display))
-                if first <= number <= last and len(kept) < KEPT_DISPLAYS:
+                if display is not None and first <= number <= last and len(kept) < KEPT_DISPLAYS:
                     kept[number] = display
             except Exception as exc:  # a malformed page must not stop the document
                 infos.append(None)
@@ -495,7 +501,8 @@ def extract_pdf(doc: Document, config: ExtractConfig, pages: tuple[int, int] | N
             if info is None or not first <= number <= last:
                 continue
             try:
-                reading = _Page(pdf, pdf[number - 1], number, doc, config, pattern, kept.pop(number, None))
+                reading = _Page(pdf, pdf[number - 1], number, doc, config, pattern, paths[number],
+                                kept.pop(number, None))
                 figures, decorations = _page_figures(reading, info, repeated)
             except Exception as exc:  # a malformed page must not stop the document
                 result.errors.append(f"page {number}: {_reason(exc)}")
