@@ -159,28 +159,55 @@ def line_uneven_axis(ctx: CheckContext) -> Outcome:
     problem="""A line through yearly samples with two years missing, drawn as one unbroken line without
         markers.""",
     better="""A marker at each sample (or a visible break in the line) so readers see where the data are.""",
-    limitations="""Needs the sample positions: vector vertices, or markers visible in pixels; a raster line
-        without markers is left unmeasured, and smoothed vector curves hide their samples.""",
+    limitations="""Needs the sample positions: vector vertices, or markers visible in pixels; for a raster
+        line without markers, the places where it bends. A raster line crossed by another at a bend, dashed, or
+        whose bends could be an even grid with some samples on straight stretches, is left unmeasured; smoothed
+        vector curves hide their samples.""",
 )
 def line_marker_gaps(ctx: CheckContext) -> Outcome:
     series = ctx.measure("line_series")
     if not series:
         return Outcome()
-    if any(not s.has_markers and not s.points for s in series):
-        return Outcome(unmeasured=True, reason="sample positions of a line without markers are not visible in pixels")
     limit = ctx.options["max_step_ratio"]
+    unjudged = False  # a line whose samples do not all show; a finding on another line still stands
     for line in series:
         if line.has_markers:
             continue
+        if not line.points:
+            unjudged = True
+            continue
         xs = np.unique(np.round([x for x, _ in line.points], 1))
-        if not 4 <= len(xs) <= ctx.options["max_samples"]:
+        if len(xs) > ctx.options["max_samples"]:
+            continue
+        if len(xs) < 4:
+            unjudged = unjudged or line.bends  # bends are the samples that show: more may hide on straight stretches
             continue
         steps = np.diff(xs)
         ratio = steps.max() / max(steps.min(), 1e-6)
-        if ratio > limit:
-            return Outcome(findings=(Draft(message=f"samples {ratio:.1f}x unevenly spaced along x, drawn without markers",
-                                           value=f"{ratio:.1f}", threshold=f"{limit:g}", region=line.bbox),))
+        if ratio <= limit:
+            continue
+        if line.bends and _even_with_hidden_samples(steps):
+            unjudged = True
+            continue
+        return Outcome(findings=(Draft(message=f"samples {ratio:.1f}x unevenly spaced along x, drawn without markers",
+                                       value=f"{ratio:.1f}", threshold=f"{limit:g}", region=line.bbox),))
+    if unjudged:
+        return Outcome(unmeasured=True, reason="sample positions of a line without markers are not all visible in pixels")
     return Outcome()
+
+
+BEND_POSITION_ERROR = 2.0  # pixels: where a raster line's bend is found along x (about a stroke width; common practice, no source)
+END_SLACK = 0.1  # share of the sample step: a line's ends are found less exactly (caps, unseen end markers; common practice, no source)
+
+
+def _even_with_hidden_samples(steps: np.ndarray) -> bool:
+    """Whether bends with these x steps could be evenly spaced samples of which some lie on a
+    straight stretch (and so show no bend): every step a whole multiple of one sample step
+    (the least-squares step for the multiples the smallest step gives), within the error
+    of two bend positions."""
+    multiples = np.maximum(np.round(steps / steps.min()), 1)
+    unit = float(multiples @ steps / (multiples @ multiples))
+    return bool(np.all(np.abs(steps - multiples * unit) <= 2 * BEND_POSITION_ERROR + END_SLACK * unit))
 
 
 @rule(

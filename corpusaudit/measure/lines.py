@@ -4,8 +4,9 @@ Vector: stroked polylines grouped by colour, dash pattern and width (one group i
 series), markers as small closed paths on the series' vertices, filled areas as closed
 polygons with their lower boundary. Raster: series are the palette colours drawn
 as thin strokes across the plot area (with their markers, when round blobs sit on the
-stroke); stacked areas are bands of different colours that span the filled width and
-touch.
+stroke, or else the places where the stroke bends); stacked areas are bands of different
+colours that span the filled width and touch, and overlapping translucent areas are
+counted by the flat colour runs down each column.
 """
 
 from __future__ import annotations
@@ -31,6 +32,7 @@ class Series:
     points: tuple[tuple[float, float], ...]  # vertices in drawing order (vector); () for rasters
     has_markers: bool | None  # None: not measured
     bbox: BBox
+    bends: bool = False  # points are where an unmarked raster stroke bends: the samples that show, not all of them
 
 
 def _marker_centres(figure: Figure, plot: BBox, frames: list[BBox]) -> list[tuple[float, float, tuple]]:
@@ -220,6 +222,60 @@ def _markers_of(mask: np.ndarray) -> tuple[list[tuple[float, float]], float]:
     return sorted((float(x), float(y)) for x, y in centroids[1:][round_blobs]), 2 * half_width
 
 
+JOIN_WIDTHS = 3.0  # a line join spreads over about this many stroke widths (common practice, no source)
+BEND_TOLERANCE = 1.5  # pixels: a stroke's centre line wanders by up to about a pixel (anti-aliasing, JPEG)
+
+
+def _bends(mask: np.ndarray, columns: np.ndarray, stroke: float, others: np.ndarray | None) -> list[tuple[float, float]]:
+    """The vertices of a polyline stroke, its ends included: the stroke's centre line (the
+    median row of its pixels in each column, holes closed first, gaps bridged linearly) simplified
+    by Douglas-Peucker (cv2.approxPolyDP) within BEND_TOLERANCE (or most of a stroke width:
+    a sharp bend of a thick stroke flattens its centre line over the join).
+    Samples where the line goes on straight leave no bend, so this is a subset of the samples.
+    Where another series (others: its pixels) crosses or touches the stroke, the centre line
+    is pulled aside, and where columns of the stroke are missing (another colour on top, JPEG
+    shifting a thin line's colour) the bridge cuts the corner: a bend near either may be no
+    sample, and then no bends are returned (not measured)."""
+    part = mask[:, columns.min():columns.max() + 1]
+    # bridge the holes that grid-line removal and crossing lines leave (up to 6 pixels)
+    part = cv2.morphologyEx(part, cv2.MORPH_CLOSE, np.ones((7, 1), np.uint8))
+    part = cv2.morphologyEx(part, cv2.MORPH_CLOSE, np.ones((1, 7), np.uint8))
+    present = np.flatnonzero(part.any(axis=0))
+    counts = np.cumsum(part[:, present], axis=0, dtype=np.int32)  # the median row: stray pixels do not move it
+    total = counts[-1]
+    centre = ((counts >= total / 2.0).argmax(axis=0) + (counts >= total / 2.0 + 0.5).argmax(axis=0)) / 2.0
+    span = np.arange(present[-1] + 1)
+    line = np.stack([span, np.interp(span, present, centre)], axis=1).astype(np.float32)
+    vertices = cv2.approxPolyDP(line.reshape(-1, 1, 2), max(BEND_TOLERANCE, 0.75 * stroke), False).reshape(-1, 2)
+    # A bend is found along x to within the centre line's wander over its change of slope
+    # (a shallow bend is placed loosely), and not closer than its join: vertices closer
+    # than the looser one's reach are one bend.
+    steps = np.maximum(np.diff(vertices[:, 0]), 1.0)
+    slopes = np.diff(vertices[:, 1]) / steps
+    turn = np.concatenate([[np.inf], np.abs(np.diff(slopes)), [np.inf]])
+    loose = np.maximum(JOIN_WIDTHS * max(stroke, 1.0), BEND_TOLERANCE / np.maximum(turn, 1e-6))
+    # a cap runs past the end sample and a sloped stroke's cut end spreads over columns
+    loose[[0, -1]] = 2 * JOIN_WIDTHS * max(stroke, 1.0)
+    groups = np.concatenate([[0], np.cumsum(steps > np.maximum(loose[:-1], loose[1:]))])
+    ends = {0: vertices[0], groups[-1]: vertices[-1]}  # the line's ends stay where they are
+    bends = [(float(x + columns.min()), float(y)) for x, y in
+             (ends.get(g, vertices[groups == g].mean(axis=0)) for g in range(groups[-1] + 1))]
+    placed = np.asarray(bends)
+    slopes = np.diff(placed[:, 1]) / np.maximum(np.diff(placed[:, 0]), 1.0)
+    if len(placed) > 2 and (BEND_TOLERANCE / np.maximum(np.abs(np.diff(slopes)), 1e-6)).max() > 2 * JOIN_WIDTHS * max(stroke, 1.0):
+        return []  # a bend too shallow to place along x within two joins: the samples' spacing is not seen
+    reach = int(np.ceil(JOIN_WIDTHS * max(stroke, 1.0)))
+    missing = np.ones(len(span), bool)
+    missing[present] = False
+    for x, y in bends[1:-1]:
+        cx, cy = int(round(x)), int(round(y))
+        if missing[max(0, cx - columns.min() - reach):cx - columns.min() + reach + 1].any():
+            return []  # the centre line was bridged there: the bend may be a cut corner
+        if others is not None and others[max(0, cy - reach):cy + reach + 1, max(0, cx - reach):cx + reach + 1].any():
+            return []
+    return bends
+
+
 def _raster_series(rgb: np.ndarray, plot: BBox) -> list[Series]:
     """Series are the colours of the plot drawn as thin strokes across it.
 
@@ -227,7 +283,9 @@ def _raster_series(rgb: np.ndarray, plot: BBox) -> list[Series]:
     that ink fills across the plot (grid); a colour is dropped when it forms large solid
     regions (areas, bars) or spans too little of the width (legend swatches, text).
     Fringes and colour variants of one line are grouped into one series (_co_located). Round blobs of a stroke's colour at least 2.5 stroke widths across are its
-    markers, and their centres its sample points.
+    markers, and their centres its sample points; a solid stroke without markers gives its
+    bends instead (_bends), read, like the markers, from its pixels before grid removal
+    (grid lines often run through the samples).
     """
     x0, y0, x1, y1 = (int(round(v)) for v in plot)
     inner = np.ascontiguousarray(rgb[y0 + 3:y1 - 2, x0 + 3:x1 - 2])
@@ -235,8 +293,9 @@ def _raster_series(rgb: np.ndarray, plot: BBox) -> list[Series]:
         raise MeasurementUnavailable("empty plot area")
     height, width = inner.shape[:2]
     classes, palette = _colour_classes(inner)
+    whole = classes.copy()  # labels before grid removal (for bends)
     classes[~_grid_free(inner, background_rgb(inner))] = -1
-    strokes = []
+    strokes, stroke_classes = [], []
     for index, colour in enumerate(palette):
         mask = (classes == index).astype(np.uint8)
         pixel_count = int(mask.sum())
@@ -248,25 +307,34 @@ def _raster_series(rgb: np.ndarray, plot: BBox) -> list[Series]:
             if len(stats) > 1 and stats[1:, cv2.CC_STAT_AREA].max() > FILL_SHARE * width * height:
                 continue  # a filled region (area, bar), not a stroke
         strokes.append((colour, mask))
-    groups = _co_located(strokes, background_rgb(inner))
-    series = []
-    for members in groups:
+        stroke_classes.append(index)
+    kept = []
+    for members in _co_located(strokes, background_rgb(inner)):
         mask = np.any([strokes[k][1] for k in members], axis=0).astype(np.uint8)
         columns = np.flatnonzero(mask.any(axis=0))
-        if len(columns) < MIN_SPAN_SHARE * width:
-            continue
+        if len(columns) >= MIN_SPAN_SHARE * width:
+            # grid lines cut strokes where they cross (and hide level stretches): bends are read
+            # from the stroke's own colours before grid removal, near what survived it
+            near = cv2.dilate(mask, np.ones((7, 7), np.uint8)).astype(bool)
+            kept.append((members, mask, columns, np.isin(whole, [stroke_classes[k] for k in members]) & near))
+    series = []
+    for index, (members, mask, columns, full) in enumerate(kept):
         colour = max((strokes[k] for k in members), key=lambda item: int(item[1].sum()))[0]
-        markers, _ = _markers_of(mask)
+        markers, stroke = _markers_of(full.astype(np.uint8))  # grid lines often run through the samples
         covered = np.zeros(width, bool)
         covered[columns] = True
         spread = covered[columns.min():columns.max() + 1]
         dashes = "dashed" if (~spread).mean() > 0.15 else ""
         ys, xs = np.nonzero(mask)
+        samples, bends = markers, False
+        if not markers and not dashes:  # dashes hide bends
+            others = np.any([k[3] for j, k in enumerate(kept) if j != index], axis=0) if len(kept) > 1 else None
+            samples, bends = _bends(full.astype(np.uint8), columns, stroke, others), True
         series.append(Series(colour=tuple(int(round(v)) for v in colour), dashes=dashes,
-                             points=tuple((x0 + 3 + x, y0 + 3 + y) for x, y in markers),
+                             points=tuple((x0 + 3 + x, y0 + 3 + y) for x, y in samples),
                              has_markers=bool(markers),
                              bbox=(float(x0 + 3 + xs.min()), float(y0 + 3 + ys.min()),
-                                   float(x0 + 3 + xs.max()), float(y0 + 3 + ys.max()))))
+                                   float(x0 + 3 + xs.max()), float(y0 + 3 + ys.max())), bends=bends))
     return series
 
 
@@ -395,7 +463,8 @@ def _raster_areas(rgb: np.ndarray, plot: BBox) -> AreaLayers:
     of the filled region, sit directly on one another in most columns, and neither is
     the other seen through a translucent band. Translucent areas drawn from a common
     baseline fail the first test wherever their tops cross (the region where one layer
-    shows alone stops at the crossing), and the last one elsewhere."""
+    shows alone stops at the crossing), and the last one elsewhere; they are counted by
+    the flat colour runs down each column (_layers_by_runs)."""
     from corpusaudit.measure.colour import extract_palette
 
     x0, y0, x1, y1 = (int(round(v)) for v in plot)
@@ -442,13 +511,102 @@ def _raster_areas(rgb: np.ndarray, plot: BBox) -> AreaLayers:
     stacked = len(spanning) >= 2 and columns_with_area > 0 and touching_columns >= 0.5 * columns_with_area
     ys, xs = np.nonzero(np.any([solid[k] for k in bands], axis=0))
     region = (float(x0 + 3 + xs.min()), float(y0 + 3 + ys.min()), float(x0 + 3 + xs.max()), float(y0 + 3 + ys.max()))
-    if stacked:
-        count = len(spanning)
-    else:  # overlapping translucent areas: regions where several show through are not layers
-        count = max(1, sum(1 for a in bands if not any(
-            _is_blend(palette[a], palette[b], [palette[c] for c in bands if c not in (a, b)], background)
-            for b in bands if b != a)))
+    # stacked: one spanning band per layer; otherwise layers overlap (translucent, from a common
+    # baseline) and each column shows one flat run of colour per distinct layer top
+    count = len(spanning) if stacked else max(1, _layers_by_runs(inner, background))
     return AreaLayers(count=count, stacked=stacked, region=region)
+
+
+RUN_WINDOW = 3  # rows averaged each side of a candidate edge (beyond a 1-2 px anti-aliased transition)
+MIN_EDGE = 4.0  # sRGB distance between the mean colours either side of an edge, at least (noise-free rasters)
+MIN_RUN = 8  # rows: a thinner run is an edge's transition, an outline, or a grid line with its JPEG ringing (8 x 8 blocks, ITU-T T.81)
+PANEL_DISTANCE = 20.0  # sRGB distance: a run this close to the panel colour is no layer
+SUSTAINED_SHARE = 0.02  # a count holds over at least this share of the columns (a few stray edges do not)
+
+
+def _column_runs(smooth: np.ndarray, edge: float) -> tuple[np.ndarray, ...]:
+    """Runs of flat colour down every column of smooth (float32, h x w x 3), split where the
+    mean colour of the RUN_WINDOW rows below a row differs from that of the rows above by
+    at least edge (the largest such difference within the window). Returns, per run in
+    column-major order: column, first row, end row, mean colour and per-channel variance."""
+    height, width = smooth.shape[:2]
+    k = RUN_WINDOW
+    sums = np.zeros((height + 1, width, 3), np.float32)
+    sums[1:] = np.cumsum(smooth, axis=0)
+    rows = np.arange(k, height - k)
+    strength = np.zeros((height, width), np.float32)
+    strength[rows] = np.linalg.norm((sums[rows + 1 + k] - sums[rows + 1]) - (sums[rows] - sums[rows - k]), axis=2) / k
+    peaks = (strength >= edge) & (strength >= cv2.dilate(strength, np.ones((2 * k + 1, 1), np.uint8)))
+    edge_columns, edge_rows = np.nonzero(peaks.T)
+    columns = np.concatenate([edge_columns, np.arange(width), np.arange(width)])
+    cuts = np.concatenate([edge_rows, np.zeros(width, int), np.full(width, height)])
+    order = np.lexsort((cuts, columns))
+    columns, cuts = columns[order], cuts[order]
+    same = columns[1:] == columns[:-1]
+    column, start, end = columns[:-1][same], cuts[:-1][same] + 2, cuts[1:][same] - 1  # leave the transition out
+    keep = end - start >= MIN_RUN
+    column, start, end = column[keep], start[keep], end[keep]
+    size = (end - start)[:, None]
+    means = (sums[end, column].astype(np.float64) - sums[start, column]) / size
+    second = np.zeros((height + 1, width, 3))  # float64: the variance is a difference of large sums
+    second[1:] = np.cumsum(np.square(smooth, dtype=np.float64), axis=0)
+    variance = np.maximum((second[end, column] - second[start, column]) / size - means ** 2, 0.0)
+    return column, start, end, means, variance
+
+
+def _layers_by_runs(inner: np.ndarray, panel: np.ndarray) -> int:
+    """Overlapping translucent areas drawn from a common baseline: at each column the rows
+    between consecutive layer tops hold one set of layers and so one flat colour, and the
+    number of such runs (the panel left out) is the number of layers whose tops are apart
+    there. The count is the largest one that holds over SUSTAINED_SHARE of consecutive
+    columns.
+
+    A 5 x 5 median first removes grid lines and outlines up to two pixels thick and JPEG
+    speckle; the edge threshold rises with the noise left inside runs (4.5 standard
+    deviations of the window mean, so chance edges are rare); runs are alike when their
+    colours differ by less than that threshold or their own spread. The lowest layers under many
+    translucent ones differ from their neighbours by a few levels only and can be missed,
+    so the count is a lower bound."""
+    # axes leave a margin above the highest area, so the top row shows the panel; the border's
+    # modal colour may be a layer's (areas fill the bottom and the sides)
+    top = inner[0].astype(np.float32)
+    keys, counts = np.unique((top // 8).astype(int), axis=0, return_counts=True)
+    if counts.max() >= 0.5 * len(top):
+        panel = top[((top // 8).astype(int) == keys[counts.argmax()]).all(axis=1)].mean(axis=0)
+    smooth = cv2.blur(cv2.medianBlur(np.ascontiguousarray(inner), 5).astype(np.float32), (3, 1))
+    column, start, end, means, variance = _column_runs(smooth, MIN_EDGE)
+    if not len(column):
+        return 0
+    sigma = float(np.sqrt(np.median(variance.mean(axis=1))))
+    edge = max(MIN_EDGE, 4.5 * sigma * np.sqrt(2.0 / (3 * RUN_WINDOW)))  # difference of two 3 x k means
+    if edge > MIN_EDGE:
+        column, start, end, means, variance = _column_runs(smooth, edge)
+
+    def alike(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+        spread = 2 * np.sqrt(variance[a].sum(axis=1) + variance[b].sum(axis=1))
+        return (column[a] == column[b]) & (np.linalg.norm(means[a] - means[b], axis=1) < np.maximum(edge, spread))
+
+    # Going down a column the set of layers only grows (the panel shows above them all and
+    # below the baseline), so no layer's colour shows above and below another: a run between
+    # two alike layer runs interrupts them (a grid line, an outline, JPEG ringing) and goes;
+    # alike neighbours then join.
+    for _ in range(2):
+        inside = np.arange(1, len(column) - 1)
+        keep = np.ones(len(column), bool)
+        flanked = alike(inside - 1, inside + 1) & (np.linalg.norm(means[inside - 1] - panel, axis=1) > PANEL_DISTANCE)
+        keep[inside[flanked]] = False
+        column, means, variance = column[keep], means[keep], variance[keep]
+    new = np.ones(len(column), bool)
+    new[1:] = ~alike(np.arange(1, len(column)), np.arange(len(column) - 1))
+    layer = np.linalg.norm(means[new] - panel, axis=1) > PANEL_DISTANCE
+    per_column = np.bincount(column[new][layer], minlength=inner.shape[1])
+    sustain = max(3, int(SUSTAINED_SHARE * inner.shape[1]))
+    best = 0
+    for count in range(1, int(per_column.max()) + 1):
+        steps = np.diff(np.concatenate([[0], (per_column >= count).astype(np.int8), [0]]))
+        if (np.flatnonzero(steps == -1) - np.flatnonzero(steps == 1)).max() >= sustain:
+            best = count
+    return best
 
 
 MAX_BLEND_ALPHA = 0.6  # translucent areas are drawn at alpha of about 0.2 to 0.5 (common practice)

@@ -1,0 +1,131 @@
+"""line-marker-gaps on rasters: sample positions from markers, or from where an unmarked
+polyline bends, on lines drawn with known vertices.
+
+Two renderers: PIL (lines drawn at four times the size and reduced with a box filter, so
+anti-aliased differently from matplotlib) and matplotlib (the benchmark's renderer).
+The rule's threshold (largest over smallest x step above 2 is uneven) is the rule's
+default, common practice (no source); so is the bend position error the rule allows.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from PIL import Image, ImageDraw
+
+from corpusaudit.checks.cases import Case, raster_figure
+from corpusaudit.checks.registry import CheckContext, all_rules
+from corpusaudit.checks.runner import check_figure
+from corpusaudit.config import build_config
+from corpusaudit.measure import Measurements
+from corpusaudit.measure.lines import _raster_series
+
+SCALE = 4
+WIDTH, HEIGHT = 640, 420
+PLOT = (20, 20, 620, 400)
+OPTIONS = {"max_step_ratio": 2.0, "max_samples": 100}
+
+
+def _draw(lines: list[tuple[list[float], list[float], tuple[int, int, int]]], markers: bool = False,
+          width: float = 2.5) -> np.ndarray:
+    """Polylines through the given pixel vertices (x, y), anti-aliased by reduction."""
+    image = Image.new("RGB", (WIDTH * SCALE, HEIGHT * SCALE), "white")
+    pen = ImageDraw.Draw(image)
+    for xs, ys, colour in lines:
+        points = [(x * SCALE, y * SCALE) for x, y in zip(xs, ys)]
+        pen.line(points, fill=colour, width=int(width * SCALE), joint="curve")
+        if markers:
+            r = 6 * SCALE
+            for x, y in points:
+                pen.ellipse((x - r, y - r, x + r, y + r), fill=colour)
+    return np.asarray(image.resize((WIDTH, HEIGHT), Image.Resampling.BOX))
+
+
+def _zigzag(xs: list[float], amplitude: float = 120.0, middle: float = 210.0) -> list[float]:
+    """Alternating heights: every sample is a clear bend."""
+    return [middle + (amplitude if k % 2 else -amplitude) * (0.6 + 0.4 * ((k * 7) % 3) / 2) for k in range(len(xs))]
+
+
+def _judge(rgb: np.ndarray):
+    series = _raster_series(rgb, PLOT)
+    rule = next(r for r in all_rules() if r.id == "line-marker-gaps")
+    return series, rule.evaluate(CheckContext(figure=None, options=OPTIONS, measure=lambda name: series))
+
+
+EVEN = [60.0 + 80 * k for k in range(7)]
+UNEVEN = [60.0, 130, 200, 375, 445, 515]  # steps 70, 70, 175, 70, 70: 2.5 times, no whole multiple
+
+
+def test_bends_of_an_unmarked_line_are_its_samples():
+    series, _ = _judge(_draw([(EVEN, _zigzag(EVEN), (31, 119, 180))]))
+    assert len(series) == 1 and not series[0].has_markers and series[0].bends
+    found = np.array([x for x, _ in series[0].points])
+    assert len(found) == len(EVEN)
+    assert np.abs(found - EVEN).max() <= 3.0  # within about a stroke width
+
+
+def test_uneven_unmarked_samples_are_reported():
+    _, outcome = _judge(_draw([(UNEVEN, _zigzag(UNEVEN), (31, 119, 180))]))
+    assert not outcome.unmeasured
+    assert len(outcome.findings) == 1
+    assert float(outcome.findings[0].value) == pytest.approx(2.5, abs=0.2)
+
+
+def test_even_unmarked_samples_pass():
+    _, outcome = _judge(_draw([(EVEN, _zigzag(EVEN), (214, 39, 40))]))
+    assert not outcome.unmeasured and not outcome.findings
+
+
+def test_a_sample_on_a_straight_stretch_is_not_judged():
+    # evenly spaced samples, two on the straight line between their neighbours: the line
+    # shows no bend there, and the bends (steps 80, 80, 240, 80) could be even samples or a gap
+    ys = _zigzag(EVEN)
+    ys[3], ys[4] = ys[2] + (ys[5] - ys[2]) / 3, ys[2] + 2 * (ys[5] - ys[2]) / 3
+    _, outcome = _judge(_draw([(EVEN, ys, (31, 119, 180))]))
+    assert outcome.unmeasured and not outcome.findings
+
+
+def test_a_shallow_bend_is_not_placed_and_not_judged():
+    # slope 0.5 then 0.45: the line leaves the chord by 4 px at the bend, enough to see it,
+    # but 1.5 px of wander over a turn of 0.05 places it only to within 30 px along x
+    xs = [60.0, 220, 380, 540]
+    ys = [100.0, 180, 252, 172]
+    series, outcome = _judge(_draw([(xs, ys, (31, 119, 180))]))
+    assert series[0].bends and not series[0].points
+    assert outcome.unmeasured and not outcome.findings
+
+
+def test_markers_show_the_samples():
+    series, outcome = _judge(_draw([(UNEVEN, _zigzag(UNEVEN), (44, 160, 44))], markers=True))
+    assert series[0].has_markers
+    assert not outcome.unmeasured and not outcome.findings  # markers drawn: the rule passes
+
+
+def test_a_bend_where_another_line_crosses_is_not_judged():
+    # the second line passes through the first one's fourth vertex
+    ys = _zigzag(UNEVEN)
+    other_x = [20.0, 620.0]
+    other_y = [ys[3] - 0.5 * (UNEVEN[3] - 20), ys[3] + 0.5 * (620 - UNEVEN[3])]
+    series, outcome = _judge(_draw([(UNEVEN, ys, (31, 119, 180)), (other_x, other_y, (214, 39, 40))]))
+    first = next(s for s in series if s.colour[2] > 150)
+    assert first.bends and not first.points
+    assert not outcome.findings
+
+
+def _matplotlib_case(x, markers):
+    def draw(fig):
+        ax = fig.add_subplot()
+        ax.plot(x, [0.5, 0.8, 0.4, 1.2, 0.2, 0.8, 0.7, 1.1][:len(x)], color="C0", marker="o" if markers else None)
+    return Case("known", "line", draw, {})
+
+
+@pytest.mark.parametrize("x, markers, reported", [
+    ([5, 11, 16, 35, 38, 47, 49, 52], False, True),  # steps 6 to 2 to 19: uneven, no markers
+    ([0, 5, 10, 15, 20, 25, 30, 35], False, False),  # even
+    ([5, 11, 16, 35, 38, 47, 49, 52], True, False),  # uneven but marked
+])
+def test_matplotlib_lines_through_the_runner(x, markers, reported):
+    figure = raster_figure(_matplotlib_case(np.array(x, float), markers))
+    results, unmeasured = check_figure(figure, build_config({}), Measurements(figure))
+    assert ("line-marker-gaps" in {r.rule for r in results}) == reported
+    assert "line-marker-gaps" not in unmeasured
