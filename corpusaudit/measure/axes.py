@@ -163,7 +163,74 @@ def _raster_plot_area(rgb: np.ndarray) -> BBox:
         y0 = min(rows) if y1 - min(rows) > 0.25 * height else min(line[1] for line in vertical)
         if x1 - x0 > 0.2 * width and y1 - y0 > 0.2 * height:
             return (float(x0), float(y0), float(x1), float(y1))
+    framed = _tick_frame(rgb, background)
+    if framed is not None:
+        return framed
     raise MeasurementUnavailable("no plot area (no axis lines or plot panel found)")
+
+
+FAINT_LINE = 6.0  # distance from the page (0..255 sRGB) of a hairline frame, above JPEG noise on flat page
+FRAMED_TICK_INK = 100.0  # a light grey hairline frame (#ddd: 59 from white) stays below it, grey ticks (#888: 206) above
+TICK_SPAN = 0.3  # a row of tick marks spans at least this share of the figure (glyph strokes of a word do not)
+
+
+def _tick_row(stats: np.ndarray, side: str, size: int) -> np.ndarray | None:
+    """Tick marks of one axis: short thin strokes across it, of one length and aligned (their
+    ends within a pixel), spread along the axis; the largest such set."""
+    along, across = (1, 2) if side == "x" else (2, 1)  # stats columns: label, x, y, w, h, area
+    thin = (stats[:, 2 + along] <= 3) & (stats[:, 2 + across] >= 3) & (stats[:, 2 + across] <= 0.05 * size) \
+        & (stats[:, 2 + across] >= 2 * stats[:, 2 + along])
+    strokes = stats[thin]
+    best = None
+    for start, length in {(int(r[across]), int(r[2 + across])) for r in strokes}:
+        group = strokes[(np.abs(strokes[:, across] - start) <= 1) & (np.abs(strokes[:, 2 + across] - length) <= 1)]
+        if len(group) >= 3 and np.ptp(group[:, along]) >= TICK_SPAN * size and (best is None or len(group) > len(best)):
+            best = group
+    return best
+
+
+def _faint_line(faint: np.ndarray, positions: range, axis: int) -> int | None:
+    """The first of positions (rows for axis 1, columns for axis 0 of faint) holding a hairline
+    along most (0.6) of its length."""
+    for position in positions:
+        line = faint[position] if axis == 1 else faint[:, position]
+        if line.size and line.mean() >= 0.6:
+            return position
+    return None
+
+
+def _tick_frame(rgb: np.ndarray, background: np.ndarray) -> BBox | None:
+    """The plot area of a frame too faint to read as lines (a hairline in a light grey): the
+    inner ends of the tick marks give its left and bottom sides, the faint frame lines beyond
+    them (else the outermost ticks) the others."""
+    height, width = rgb.shape[:2]
+    import cv2
+
+    # Ink well darker than the hairline, so that ticks touching the frame stand apart from it, and
+    # without solid shapes (bars drawn from the frame, which ticks touch): a tick is thinner than 5 px.
+    ink = ink_mask(rgb, background, threshold=FRAMED_TICK_INK).astype(np.uint8)
+    ink &= 1 - cv2.morphologyEx(ink, cv2.MORPH_OPEN, np.ones((5, 5), np.uint8))
+    _, stats, _ = component_stats(ink, min_area=2)
+    x_ticks, y_ticks = _tick_row(stats, "x", width), _tick_row(stats, "y", height)
+    if x_ticks is None or y_ticks is None:
+        return None
+    x0 = int(np.median(y_ticks[:, 1] + y_ticks[:, 3]))  # right ends of the y ticks
+    y1 = int(np.median(x_ticks[:, 2])) - 1  # tops of the x ticks
+    far_x = int(x_ticks[:, 1].max() + x_ticks[:, 3].max())
+    near_y = int(y_ticks[:, 2].min())
+    if far_x - x0 < 0.2 * width or y1 - near_y < 0.2 * height:
+        return None
+    faint = colour_distance(rgb, background) > FAINT_LINE
+    # A hairline frame stands up to a few pixels off the tick ends (ggplot-like styles leave a gap).
+    left = _faint_line(faint[near_y:y1, :], range(x0, min(width, x0 + 6)), 0)
+    bottom = _faint_line(faint[:, x0:far_x], range(y1, max(0, y1 - 6), -1), 1)
+    x0 = left if left is not None else x0
+    y1 = bottom if bottom is not None else y1
+    right = _faint_line(faint[near_y:y1, :], range(width - 1, far_x - 2, -1), 0)
+    top = _faint_line(faint[:, x0:far_x], range(0, near_y + 2), 1)
+    x1 = right if right is not None else far_x
+    y0 = top if top is not None else near_y
+    return (float(x0), float(y0), float(x1), float(y1))
 
 
 def _figure_size(figure: Figure) -> tuple[float, float]:
@@ -369,9 +436,10 @@ def _raster_label_spans(rgb: np.ndarray, plot: BBox, reach: int, side: str) -> l
 def axes(figure: Figure, measurements) -> Axes:
     """Plot area with both axes: tick labels, their numbers and the linear value scale.
 
-    Raster x labels are found from their ink, one per tick, and read one by one turned level
-    (x_label_texts): read as a strip, OCR joins neighbouring labels or splits one, and reads
-    rotated ones as fragments. Raster y labels (level numbers in a column) are read as a strip.
+    Raster labels are found from their ink, one per tick, and read one by one turned level
+    (x_label_texts, y_label_texts): read as a strip, OCR joins neighbouring labels or splits one,
+    reads rotated ones as fragments, and reads an axis title set beside the y labels into them
+    ('% 62'). The strip is the fallback where no label blobs are found.
     """
     plot = measurements.get("plot_area")
     marks = measurements.get("tick_marks")
@@ -381,11 +449,13 @@ def axes(figure: Figure, measurements) -> Axes:
         y_labels = [_span_tick(s, "y") for s in _select_labels(spans, plot, "y", scale)]
     else:
         rgb = require_pixels(figure)
-        x_labels = list(measurements.get("x_label_texts"))
         reach = measurements.get("tick_reach")
+        x_labels = list(measurements.get("x_label_texts"))
         if not x_labels:
             x_labels = [_span_tick(s, "x") for s in _raster_label_spans(rgb, plot, reach, "x")]
-        y_labels = [_span_tick(s, "y") for s in _raster_label_spans(rgb, plot, reach, "y")]
+        y_labels = list(measurements.get("y_label_texts"))
+        if not y_labels:
+            y_labels = [_span_tick(s, "y") for s in _raster_label_spans(rgb, plot, reach, "y")]
     return Axes(plot=plot,
                 x=_build_axis("x", x_labels, marks["x"], (plot[0], plot[2])),
                 y=_build_axis("y", y_labels, marks["y"], (plot[1], plot[3])))

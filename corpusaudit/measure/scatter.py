@@ -85,6 +85,7 @@ def _dense_region(centres: np.ndarray, plot: BBox) -> BBox:
     return (float(nearest[:, 0].min()), float(nearest[:, 1].min()), float(nearest[:, 0].max()), float(nearest[:, 1].max()))
 
 
+MARKER_SHARE = 0.06  # markers are at most this share of the plot's longer side across (as on vector figures)
 BUBBLE_AREA_RANGE = 4.0  # 90th / 10th percentile of isolated marker areas beyond which markers are sized by data
 
 
@@ -94,14 +95,21 @@ def _raster_markers(rgb: np.ndarray, plot: BBox) -> Markers:
     if inner.size == 0:
         raise MeasurementUnavailable("empty plot area")
     panel = background_rgb(inner)
-    ink = (colour_distance(inner, panel) > 60).astype(np.uint8)
-    ink = cv2.morphologyEx(ink, cv2.MORPH_OPEN, np.ones((3, 3), np.uint8))  # grid lines and text strokes go
-    labels, stats, centroids = component_stats(ink, min_area=4)
+    raw = (colour_distance(inner, panel) > 60).astype(np.uint8)
+    opening = np.ones((3, 3), np.uint8)  # grid lines and text strokes go
+    ink = cv2.morphologyEx(raw, cv2.MORPH_OPEN, opening)
+    labels, stats, centroids, round_blobs = _round_blobs(ink)
+    # Hollow markers (rings, open squares): a marker covers its inside as a filled one does (the vector
+    # measurement paints disks either way), so holes no larger than a marker may be are filled, when that
+    # shows more round markers than the outlines alone.
+    filled = cv2.morphologyEx(_fill_holes(raw, MARKER_SHARE * max(plot[2] - plot[0], plot[3] - plot[1])),
+                              cv2.MORPH_OPEN, opening)
+    hollow = _round_blobs(filled)
+    if hollow[3].sum() > round_blobs.sum():
+        ink, (labels, stats, centroids, round_blobs) = filled, hollow
     if len(stats) < 3:
         raise MeasurementUnavailable("fewer than three markers found")
     areas = stats[:, 5].astype(float)
-    w, h = stats[:, 3].astype(float), stats[:, 4].astype(float)
-    round_blobs = (np.abs(w - h) <= 0.25 * np.maximum(w, h)) & (areas >= 0.6 * w * h)
     if round_blobs.sum() < 3:
         raise MeasurementUnavailable("no isolated markers to measure their size")
     single = float(np.median(areas[round_blobs & (areas <= 2.5 * np.percentile(areas[round_blobs], 25))]))
@@ -140,6 +148,24 @@ def _raster_markers(rgb: np.ndarray, plot: BBox) -> Markers:
     count = bubble_count if bubbles else int(round(total_area / single))
     return Markers(count=count, radius=radius, hidden_share=float(hidden),
                    edge_count=len(edge), edge_boxes=tuple(edge), dense_region=_dense_region(centres, plot))
+
+
+def _round_blobs(ink: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Components of the ink with a flag for those shaped like one marker (about as wide as tall, solid)."""
+    labels, stats, centroids = component_stats(ink, min_area=4)
+    w, h, areas = (stats[:, k].astype(float) for k in (3, 4, 5))
+    return labels, stats, centroids, (np.abs(w - h) <= 0.25 * np.maximum(w, h)) & (areas >= 0.6 * w * h)
+
+
+def _fill_holes(ink: np.ndarray, largest: float) -> np.ndarray:
+    """The ink with its enclosed holes filled where the hole is at most largest pixels across."""
+    # 4-connected background: the counterpart of 8-connected ink, so a hole does not leak through a corner
+    _, background, holes, _ = cv2.connectedComponentsWithStats((ink == 0).astype(np.uint8), connectivity=4)
+    x, y, w, h = (holes[:, k] for k in range(4))
+    height, width = ink.shape
+    enclosed = (x > 0) & (y > 0) & (x + w < width) & (y + h < height) & (np.maximum(w, h) <= largest)
+    enclosed[0] = False  # label 0 is the ink itself
+    return (ink.astype(bool) | enclosed[background]).astype(np.uint8)
 
 
 def _framed_sides(rgb: np.ndarray, plot: tuple[int, int, int, int], panel: np.ndarray) -> tuple[bool, ...]:
