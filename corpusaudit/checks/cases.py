@@ -56,7 +56,14 @@ def unordered_names(rng: np.random.Generator, n: int) -> list[str]:
 
 
 def _unsorted(rng: np.random.Generator, values: list[float]) -> list[float]:
-    """A shuffle that is neither ascending nor descending, with a clear inversion."""
+    """A shuffle that is neither ascending nor descending, with a clear inversion (a rise and a
+    fall of more than 5% of the largest value). Values too close together for one are first
+    spread evenly from half the largest to the largest, keeping their ranks."""
+    ranked = sorted(values)
+    clear = 0.05 * ranked[-1]
+    if len(values) < 3 or not (ranked[1] < ranked[-1] - clear or ranked[-2] > ranked[0] + clear):
+        ranks = np.argsort(np.argsort(values))
+        values = [round(ranked[-1] * (0.5 + 0.5 * float(r) / max(1, len(values) - 1)), 1) for r in ranks]
     while True:
         order = list(rng.permutation(values))
         steps = np.diff(order)
