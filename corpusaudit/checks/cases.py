@@ -339,13 +339,15 @@ def hidden_share(ax, points: np.ndarray, radius_px: float, supersample: int = 4)
     centres = (ax.transData.transform(points) - (box.x0, box.y0)) * supersample
     width, height = int(np.ceil(box.width * supersample)), int(np.ceil(box.height * supersample))
     radius = max(1, int(round(radius_px * supersample)))
+    disc = np.zeros((2 * radius + 1, 2 * radius + 1), np.uint8)
+    cv2.circle(disc, (radius, radius), radius, 1, thickness=-1)
     union = np.zeros((height, width), np.uint8)
     own = 0
-    for cx, cy in centres:
-        disc = np.zeros_like(union)
-        cv2.circle(disc, (int(round(cx)), int(round(cy))), radius, 1, thickness=-1)
-        own += int(disc.sum())
-        union |= disc
+    for cx, cy in np.round(centres).astype(int):
+        cv2.circle(union, (int(cx), int(cy)), radius, 1, thickness=-1)
+        # the disc's part inside the axes (markers are clipped there)
+        left, top = cx - radius, cy - radius
+        own += int(disc[max(0, -top):max(0, height - top), max(0, -left):max(0, width - left)].sum())
     return 1.0 - int(union.sum()) / own if own else 0.0
 
 
