@@ -296,11 +296,49 @@ def scatter_chart(rng: np.random.Generator, index: int) -> Chart:
     if shape == "point":
         mark["filled"] = bool(rng.random() < 0.5)
     data = [{"length": float(x), "mass": float(y)} for x, y in points]
-    spec = {"width": int(rng.integers(240, 380)), "height": int(rng.integers(180, 300)), "data": {"values": data},
+    width, height = int(rng.integers(240, 380)), int(rng.integers(180, 300))
+    # Explicit domains, not rounded outwards ("nice"): where each marker lands is then known.
+    domains = [(float(v.min() - 0.05 * np.ptp(v)), float(v.max() + 0.05 * np.ptp(v))) for v in points.T]
+    spec = {"width": width, "height": height, "data": {"values": data},
             "mark": mark,
-            "encoding": {"x": {"field": "length", "type": "quantitative", "scale": {"zero": False}, "title": "Shell length"},
-                         "y": {"field": "mass", "type": "quantitative", "scale": {"zero": False}, "title": "Dry mass"}}}
-    return Chart(f"scatter-{index}", "scatter", spec, {"scatter-overplotting": dense}, {"points": len(points)})
+            "encoding": {"x": {"field": "length", "type": "quantitative", "title": "Shell length",
+                               "scale": {"zero": False, "nice": False, "domain": list(domains[0])}},
+                         "y": {"field": "mass", "type": "quantitative", "title": "Dry mass",
+                               "scale": {"zero": False, "nice": False, "domain": list(domains[1])}}}}
+    pixels = np.column_stack([(points[:, k] - lo) / (hi - lo) * extent
+                              for k, ((lo, hi), extent) in enumerate(zip(domains, (width, height)))])
+    hidden = _hidden_share(pixels, (width, height), size, square=shape == "square")
+    return Chart(f"scatter-{index}", "scatter", spec, {"scatter-overplotting": hidden > OVERPLOTTING_LIMIT},
+                 {"points": len(points)})
+
+
+OVERPLOTTING_LIMIT = 0.2  # scatter-overplotting's default max_hidden_share
+
+
+def _hidden_share(centres: np.ndarray, plot: tuple[int, int], size: float, square: bool, supersample: int = 4) -> float:
+    """1 - (area of the union of the markers) / (sum of their areas) within the plot: what
+    scatter-overplotting judges, from where the markers were drawn. A mark's size is its
+    area in square pixels (Vega-Lite), a point's outline counted as its disc."""
+    import cv2
+
+    width, height = plot[0] * supersample, plot[1] * supersample
+    half = np.sqrt(size) / 2 if square else np.sqrt(size / np.pi)
+    reach = max(1, int(round(half * supersample)))
+    shape = np.zeros((2 * reach + 1, 2 * reach + 1), np.uint8)
+    if square:
+        shape[:] = 1
+    else:
+        cv2.circle(shape, (reach, reach), reach, 1, thickness=-1)
+    union = np.zeros((height, width), np.uint8)
+    own = 0
+    for cx, cy in np.round(centres * supersample).astype(int):
+        left, top = cx - reach, cy - reach
+        window = (slice(max(0, top), max(0, min(height, top + 2 * reach + 1))),
+                  slice(max(0, left), max(0, min(width, left + 2 * reach + 1))))
+        part = shape[window[0].start - top:window[0].stop - top, window[1].start - left:window[1].stop - left]
+        union[window] |= part
+        own += int(part.sum())
+    return 1.0 - int(union.sum()) / own if own else 0.0
 
 
 def box_chart(rng: np.random.Generator, index: int) -> Chart:
