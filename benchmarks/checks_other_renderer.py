@@ -38,7 +38,7 @@ ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
 from benchmarks.checks import _measurement_errors, print_report  # noqa: E402  same scoring and table
-from corpusaudit.checks.cases import MONTHS  # noqa: E402
+from corpusaudit.checks.cases import MONTHS, overlap_share  # noqa: E402
 from corpusaudit.checks.runner import check_figure  # noqa: E402
 from corpusaudit.config import build_config  # noqa: E402
 from corpusaudit.measure import Measurements  # noqa: E402
@@ -316,29 +316,17 @@ OVERPLOTTING_LIMIT = 0.2  # scatter-overplotting's default max_hidden_share
 
 
 def _hidden_share(centres: np.ndarray, plot: tuple[int, int], size: float, square: bool, supersample: int = 4) -> float:
-    """1 - (area of the union of the markers) / (sum of their areas) within the plot: what
-    scatter-overplotting judges, from where the markers were drawn. A mark's size is its
-    area in square pixels (Vega-Lite), a point's outline counted as its disc."""
+    """What scatter-overplotting judges, from where the markers were drawn (cases.overlap_share).
+    A mark's size is its area in square pixels (Vega-Lite); a point's outline counts as its disc."""
     import cv2
 
-    width, height = plot[0] * supersample, plot[1] * supersample
     half = np.sqrt(size) / 2 if square else np.sqrt(size / np.pi)
     reach = max(1, int(round(half * supersample)))
-    shape = np.zeros((2 * reach + 1, 2 * reach + 1), np.uint8)
-    if square:
-        shape[:] = 1
-    else:
-        cv2.circle(shape, (reach, reach), reach, 1, thickness=-1)
-    union = np.zeros((height, width), np.uint8)
-    own = 0
-    for cx, cy in np.round(centres * supersample).astype(int):
-        left, top = cx - reach, cy - reach
-        window = (slice(max(0, top), max(0, min(height, top + 2 * reach + 1))),
-                  slice(max(0, left), max(0, min(width, left + 2 * reach + 1))))
-        part = shape[window[0].start - top:window[0].stop - top, window[1].start - left:window[1].stop - left]
-        union[window] |= part
-        own += int(part.sum())
-    return 1.0 - int(union.sum()) / own if own else 0.0
+    mark = np.ones((2 * reach + 1, 2 * reach + 1), np.uint8)
+    if not square:
+        mark[:] = 0
+        cv2.circle(mark, (reach, reach), reach, 1, thickness=-1)
+    return overlap_share(np.round(centres * supersample).astype(int), (plot[0] * supersample, plot[1] * supersample), mark)
 
 
 def box_chart(rng: np.random.Generator, index: int) -> Chart:

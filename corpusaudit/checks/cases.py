@@ -337,17 +337,27 @@ def hidden_share(ax, points: np.ndarray, radius_px: float, supersample: int = 4)
 
     box = ax.get_window_extent()
     centres = (ax.transData.transform(points) - (box.x0, box.y0)) * supersample
-    width, height = int(np.ceil(box.width * supersample)), int(np.ceil(box.height * supersample))
     radius = max(1, int(round(radius_px * supersample)))
     disc = np.zeros((2 * radius + 1, 2 * radius + 1), np.uint8)
     cv2.circle(disc, (radius, radius), radius, 1, thickness=-1)
+    size = (int(np.ceil(box.width * supersample)), int(np.ceil(box.height * supersample)))
+    return overlap_share(np.round(centres).astype(int), size, disc)
+
+
+def overlap_share(centres: np.ndarray, size: tuple[int, int], mark: np.ndarray) -> float:
+    """1 - union / sum of the areas of one mark (a 0/1 uint8 array of odd sides) stamped at each
+    integer centre on a width x height canvas, both clipped to it (markers are clipped to the plot)."""
+    width, height = size
+    reach_y, reach_x = mark.shape[0] // 2, mark.shape[1] // 2
     union = np.zeros((height, width), np.uint8)
     own = 0
-    for cx, cy in np.round(centres).astype(int):
-        cv2.circle(union, (int(cx), int(cy)), radius, 1, thickness=-1)
-        # the disc's part inside the axes (markers are clipped there)
-        left, top = cx - radius, cy - radius
-        own += int(disc[max(0, -top):max(0, height - top), max(0, -left):max(0, width - left)].sum())
+    for cx, cy in centres:
+        top, left = int(cy) - reach_y, int(cx) - reach_x
+        rows = slice(max(0, top), max(0, min(height, top + mark.shape[0])))
+        columns = slice(max(0, left), max(0, min(width, left + mark.shape[1])))
+        part = mark[rows.start - top:rows.stop - top, columns.start - left:columns.stop - left]
+        union[rows, columns] |= part
+        own += int(part.sum())
     return 1.0 - int(union.sum()) / own if own else 0.0
 
 
