@@ -38,7 +38,7 @@ ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
 from benchmarks.checks import _measurement_errors, print_report  # noqa: E402  same scoring and table
-from corpusaudit.checks.cases import MONTHS  # noqa: E402
+from corpusaudit.checks.cases import MONTHS, overlap_share  # noqa: E402
 from corpusaudit.checks.runner import check_figure  # noqa: E402
 from corpusaudit.config import build_config  # noqa: E402
 from corpusaudit.measure import Measurements  # noqa: E402
@@ -296,11 +296,37 @@ def scatter_chart(rng: np.random.Generator, index: int) -> Chart:
     if shape == "point":
         mark["filled"] = bool(rng.random() < 0.5)
     data = [{"length": float(x), "mass": float(y)} for x, y in points]
-    spec = {"width": int(rng.integers(240, 380)), "height": int(rng.integers(180, 300)), "data": {"values": data},
+    width, height = int(rng.integers(240, 380)), int(rng.integers(180, 300))
+    # Explicit domains, not rounded outwards ("nice"): where each marker lands is then known.
+    domains = [(float(v.min() - 0.05 * np.ptp(v)), float(v.max() + 0.05 * np.ptp(v))) for v in points.T]
+    spec = {"width": width, "height": height, "data": {"values": data},
             "mark": mark,
-            "encoding": {"x": {"field": "length", "type": "quantitative", "scale": {"zero": False}, "title": "Shell length"},
-                         "y": {"field": "mass", "type": "quantitative", "scale": {"zero": False}, "title": "Dry mass"}}}
-    return Chart(f"scatter-{index}", "scatter", spec, {"scatter-overplotting": dense}, {"points": len(points)})
+            "encoding": {"x": {"field": "length", "type": "quantitative", "title": "Shell length",
+                               "scale": {"zero": False, "nice": False, "domain": list(domains[0])}},
+                         "y": {"field": "mass", "type": "quantitative", "title": "Dry mass",
+                               "scale": {"zero": False, "nice": False, "domain": list(domains[1])}}}}
+    pixels = np.column_stack([(points[:, k] - lo) / (hi - lo) * extent
+                              for k, ((lo, hi), extent) in enumerate(zip(domains, (width, height)))])
+    hidden = _hidden_share(pixels, (width, height), size, square=shape == "square")
+    return Chart(f"scatter-{index}", "scatter", spec, {"scatter-overplotting": hidden > OVERPLOTTING_LIMIT},
+                 {"points": len(points)})
+
+
+OVERPLOTTING_LIMIT = 0.2  # scatter-overplotting's default max_hidden_share
+
+
+def _hidden_share(centres: np.ndarray, plot: tuple[int, int], size: float, square: bool, supersample: int = 4) -> float:
+    """What scatter-overplotting judges, from where the markers were drawn (cases.overlap_share).
+    A mark's size is its area in square pixels (Vega-Lite); a point's outline counts as its disc."""
+    import cv2
+
+    half = np.sqrt(size) / 2 if square else np.sqrt(size / np.pi)
+    reach = max(1, int(round(half * supersample)))
+    mark = np.ones((2 * reach + 1, 2 * reach + 1), np.uint8)
+    if not square:
+        mark[:] = 0
+        cv2.circle(mark, (reach, reach), reach, 1, thickness=-1)
+    return overlap_share(np.round(centres * supersample).astype(int), (plot[0] * supersample, plot[1] * supersample), mark)
 
 
 def box_chart(rng: np.random.Generator, index: int) -> Chart:

@@ -34,6 +34,9 @@ class Case:
     size: tuple[float, float] = (5.0, 3.5)
     font_size: float = 10.0
     projection: str | None = None
+    # Truth that depends on where things land once the figure is laid out (style, size and
+    # font are chosen after the family): read from the laid-out matplotlib Figure.
+    drawn_truth: Callable[[Any], dict[str, bool]] | None = None
 
 
 def invented_names(rng: np.random.Generator, n: int) -> list[str]:
@@ -53,7 +56,14 @@ def unordered_names(rng: np.random.Generator, n: int) -> list[str]:
 
 
 def _unsorted(rng: np.random.Generator, values: list[float]) -> list[float]:
-    """A shuffle that is neither ascending nor descending, with a clear inversion."""
+    """A shuffle that is neither ascending nor descending, with a clear inversion (a rise and a
+    fall of more than 5% of the largest value). Values too close together for one are first
+    spread evenly from half the largest to the largest, keeping their ranks."""
+    ranked = sorted(values)
+    clear = 0.05 * ranked[-1]
+    if len(values) < 3 or not (ranked[1] < ranked[-1] - clear or ranked[-2] > ranked[0] + clear):
+        ranks = np.argsort(np.argsort(values))
+        values = [round(ranked[-1] * (0.5 + 0.5 * float(r) / max(1, len(values) - 1)), 1) for r in ranks]
     while True:
         order = list(rng.permutation(values))
         steps = np.diff(order)
@@ -308,7 +318,47 @@ def scatter_case(rng: np.random.Generator, index: int) -> Case:
             ax.set_xlim(pts[:, 0].min() - margin, pts[:, 0].max() + margin)
             ax.set_ylim(pts[:, 1].min() - 0.08 * np.ptp(pts[:, 1]), pts[:, 1].max() + 0.08 * np.ptp(pts[:, 1]))
 
-    return Case(f"scatter-{index}", "scatter", draw, {"scatter-overplotting": dense, "scatter-edge-points": edge}, {})
+    def drawn_truth(fig) -> dict[str, bool]:
+        # A round marker of size s is sqrt(s) points across (matplotlib's scatter).
+        return {"scatter-overplotting": hidden_share(fig.axes[0], pts, np.sqrt(size) / 2 * fig.dpi / 72.0)
+                > _OVERPLOTTING_LIMIT}
+
+    return Case(f"scatter-{index}", "scatter", draw, {"scatter-edge-points": edge}, {}, drawn_truth=drawn_truth)
+
+
+_OVERPLOTTING_LIMIT = 0.2  # scatter-overplotting's default max_hidden_share
+
+
+def hidden_share(ax, points: np.ndarray, radius_px: float, supersample: int = 4) -> float:
+    """1 - (area of the union of the markers) / (sum of their areas), inside the axes, from the
+    markers' data positions and size: the quantity scatter-overplotting judges, computed from
+    what was drawn rather than from the figure."""
+    import cv2
+
+    box = ax.get_window_extent()
+    centres = (ax.transData.transform(points) - (box.x0, box.y0)) * supersample
+    radius = max(1, int(round(radius_px * supersample)))
+    disc = np.zeros((2 * radius + 1, 2 * radius + 1), np.uint8)
+    cv2.circle(disc, (radius, radius), radius, 1, thickness=-1)
+    size = (int(np.ceil(box.width * supersample)), int(np.ceil(box.height * supersample)))
+    return overlap_share(np.round(centres).astype(int), size, disc)
+
+
+def overlap_share(centres: np.ndarray, size: tuple[int, int], mark: np.ndarray) -> float:
+    """1 - union / sum of the areas of one mark (a 0/1 uint8 array of odd sides) stamped at each
+    integer centre on a width x height canvas, both clipped to it (markers are clipped to the plot)."""
+    width, height = size
+    reach_y, reach_x = mark.shape[0] // 2, mark.shape[1] // 2
+    union = np.zeros((height, width), np.uint8)
+    own = 0
+    for cx, cy in centres:
+        top, left = int(cy) - reach_y, int(cx) - reach_x
+        rows = slice(max(0, top), max(0, min(height, top + mark.shape[0])))
+        columns = slice(max(0, left), max(0, min(width, left + mark.shape[1])))
+        part = mark[rows.start - top:rows.stop - top, columns.start - left:columns.stop - left]
+        union[rows, columns] |= part
+        own += int(part.sum())
+    return 1.0 - int(union.sum()) / own if own else 0.0
 
 
 def box_case(rng: np.random.Generator, index: int) -> Case:
@@ -350,6 +400,8 @@ def generate(count: int, seed: int = 20240517) -> list[Case]:
         case.style = str(rng.choice(STYLES))
         case.size = (float(rng.uniform(4.0, 7.0)), float(rng.uniform(3.0, 4.8)))
         case.font_size = float(rng.uniform(8, 12))
+        if case.drawn_truth is not None:
+            case.truth.update(_laid_out(case, case.drawn_truth))
         cases.append(case)
     return cases
 
@@ -358,6 +410,25 @@ def generate(count: int, seed: int = 20240517) -> list[Case]:
 
 
 def _draw(case: Case, backend_format: str, dpi: int) -> bytes:
+    return _with_figure(case, lambda fig: _saved(fig, backend_format, dpi))
+
+
+def _saved(fig, backend_format: str, dpi: int) -> bytes:
+    buffer = io.BytesIO()
+    fig.savefig(buffer, format=backend_format, dpi=dpi)
+    return buffer.getvalue()
+
+
+def _laid_out(case: Case, read: Callable[[Any], Any]) -> Any:
+    """read(fig) on the case's figure once its layout is done, at RENDER_DPI."""
+    def after_layout(fig):
+        fig.set_dpi(RENDER_DPI)
+        fig.draw_without_rendering()
+        return read(fig)
+    return _with_figure(case, after_layout)
+
+
+def _with_figure(case: Case, use: Callable[[Any], Any]) -> Any:
     import matplotlib
 
     matplotlib.use("Agg")
@@ -367,9 +438,7 @@ def _draw(case: Case, backend_format: str, dpi: int) -> bytes:
     with matplotlib.style.context(case.style), matplotlib.rc_context({"font.size": case.font_size, "pdf.fonttype": 42}):
         fig = MplFigure(figsize=case.size, layout="constrained")
         case.draw(fig)
-        buffer = io.BytesIO()
-        fig.savefig(buffer, format=backend_format, dpi=dpi)
-    return buffer.getvalue()
+        return use(fig)
 
 
 def vector_figure(case: Case, dpi: int = RENDER_DPI):
