@@ -116,6 +116,8 @@ def pie_case(rng: np.random.Generator, index: int) -> Case:
         else:
             explode = [float(apart.uniform(0.03, 0.08))] * n
 
+    show_labels = bool(rng.random() < 0.5)
+
     def draw(fig):
         ax = fig.add_subplot()
         wedgeprops = {"linewidth": 1.2, "edgecolor": "white"} if edge else {}
@@ -124,7 +126,7 @@ def pie_case(rng: np.random.Generator, index: int) -> Case:
         texts = None
         if label_mode != "none":
             texts = [f"{p:.1f}%" for p in printed]
-        wedges, *_ = ax.pie(shares, labels=labels if rng.random() < 0.5 else None, startangle=90, counterclock=False,
+        wedges, *_ = ax.pie(shares, labels=labels if show_labels else None, startangle=90, counterclock=False,
                             wedgeprops=wedgeprops, explode=explode)
         if texts:
             for wedge, text in zip(wedges, texts):
@@ -170,10 +172,10 @@ def bar_case(rng: np.random.Generator, index: int) -> Case:
     truncated = truncated and low > 0
     rotation = float(rng.choice([0, 0, 30, 45, 60, 90]))
     horizontal = bool(rng.random() < 0.25) and rotation == 0
+    colour = f"C{int(rng.integers(0, 10))}"
 
     def draw(fig):
         ax = fig.add_subplot()
-        colour = f"C{int(rng.integers(0, 10))}"
         if horizontal:
             ax.barh(range(n), values, color=colour, tick_label=labels)
             ax.invert_yaxis()
@@ -201,14 +203,17 @@ def stacked_bar_case(rng: np.random.Generator, index: int) -> Case:
     segments = int(rng.integers(2, 8))
     data = rng.uniform(5, 20, (segments, n))
 
+    names = invented_names(rng, n)
+    legend = bool(rng.random() < 0.5)
+
     def draw(fig):
         ax = fig.add_subplot()
         bottom = np.zeros(n)
         for k in range(segments):
             ax.bar(range(n), data[k], bottom=bottom, color=f"C{k}", edgecolor="white" if k % 2 else None,
-                   tick_label=invented_names(rng, n) if k == 0 else None, label=f"Part {k + 1}")
+                   tick_label=names if k == 0 else None, label=f"Part {k + 1}")
             bottom += data[k]
-        if rng.random() < 0.5:
+        if legend:
             ax.legend(loc="upper left", bbox_to_anchor=(1.0, 1.0), fontsize=7)
 
     return Case(f"stacked-{index}", "bar", draw, {"bar-stack-depth": segments > 4, "bar-baseline": False},
@@ -218,10 +223,11 @@ def stacked_bar_case(rng: np.random.Generator, index: int) -> Case:
 def bar3d_case(rng: np.random.Generator, index: int) -> Case:
     n = int(rng.integers(3, 7))
     values = rng.uniform(1, 10, n)
+    colour = f"C{int(rng.integers(0, 10))}"
 
     def draw(fig):
         ax = fig.add_subplot(projection="3d")
-        ax.bar3d(np.arange(n), np.zeros(n), np.zeros(n), 0.6, 0.6, values, color=f"C{int(rng.integers(0, 10))}", shade=True)
+        ax.bar3d(np.arange(n), np.zeros(n), np.zeros(n), 0.6, 0.6, values, color=colour, shade=True)
 
     return Case(f"bar3d-{index}", "bar", draw, {"chart-3d": True}, {})
 
@@ -247,11 +253,11 @@ def line_case(rng: np.random.Generator, index: int) -> Case:
     names = unordered_names(rng, n)
     styles = ["-", "--", ":", "-."]
     legend = series > 1 and rng.random() < 0.4
+    curves = [np.cumsum(rng.normal(0, 1, n)) + 3 * k for k in range(series)]
 
     def draw(fig):
         ax = fig.add_subplot()
-        for k in range(series):
-            y = np.cumsum(rng.normal(0, 1, n)) + 3 * k
+        for k, y in enumerate(curves):
             style = styles[k // 10 % 4]
             marker = "o" if markers else None
             if kind == "numeric":
@@ -374,9 +380,11 @@ def box_case(rng: np.random.Generator, index: int) -> Case:
     data = [rng.normal(m, 4, 60) for m in medians]
     rotation = float(rng.choice([0, 0, 45]))
 
+    fliers = bool(rng.random() < 0.5)
+
     def draw(fig):
         ax = fig.add_subplot()
-        ax.boxplot(data, showfliers=bool(rng.random() < 0.5))
+        ax.boxplot(data, showfliers=fliers)
         ax.set_xticks(range(1, n + 1), labels, rotation=rotation)
 
     return Case(f"box-{index}", "box", draw,
