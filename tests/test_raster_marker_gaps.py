@@ -129,3 +129,25 @@ def test_matplotlib_lines_through_the_runner(x, markers, reported):
     results, unmeasured = check_figure(figure, build_config({}), Measurements(figure))
     assert ("line-marker-gaps" in {r.rule for r in results}) == reported
     assert "line-marker-gaps" not in unmeasured
+
+
+def test_bends_are_not_judged_beside_lines_with_markers():
+    """Markers missed on one line (where lines cross) leave its bends: an uneven sampling read
+    from them would be a false finding, since the chart draws markers."""
+    from corpusaudit.checks.line import line_marker_gaps
+    from corpusaudit.measure.lines import Series
+
+    box = (0.0, 0.0, 400.0, 200.0)
+    marked = Series(colour=(0, 0, 255), dashes="", points=((10.0, 50.0), (20.0, 60.0), (200.0, 70.0), (230.0, 40.0)),
+                    has_markers=True, bbox=box)
+    unmarked = Series(colour=(255, 0, 0), dashes="", points=((10.0, 90.0), (27.0, 80.0), (215.0, 95.0), (240.0, 60.0)),
+                      has_markers=False, bbox=box, bends=True)
+    rule = next(r for r in all_rules() if r.id == "line-marker-gaps")
+    options = {option.key: option.default for option in rule.options}
+
+    def outcome(series):
+        return line_marker_gaps(CheckContext(figure=None, options=options, measure=lambda name: series))
+
+    assert outcome([unmarked]).findings  # alone, its bends are judged: steps 17, 188, 25 px
+    beside = outcome([marked, unmarked])
+    assert not beside.findings and beside.unmeasured

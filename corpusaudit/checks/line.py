@@ -170,10 +170,13 @@ def line_marker_gaps(ctx: CheckContext) -> Outcome:
         return Outcome()
     limit = ctx.options["max_step_ratio"]
     unjudged = False  # a line whose samples do not all show; a finding on another line still stands
+    # Where some lines show markers, a raster line without found markers most likely has them too
+    # (missed where lines cross): its bends are not judged.
+    marked = any(line.has_markers for line in series)
     for line in series:
         if line.has_markers:
             continue
-        if not line.points:
+        if not line.points or (line.bends and marked):
             unjudged = True
             continue
         xs = np.unique(np.round([x for x, _ in line.points], 1))
