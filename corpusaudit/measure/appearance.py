@@ -141,12 +141,6 @@ def _shift(box, offset: int) -> BBox:
     return tuple(float(v) + offset for v in box)
 
 
-def _colour_bins(rgb_uint8: np.ndarray) -> np.ndarray:
-    """32 levels per channel: colours within ~8/255 share a bin."""
-    q = (np.asarray(rgb_uint8) >> 3).astype(np.int32)
-    return (q[..., 0] << 10) | (q[..., 1] << 5) | q[..., 2]
-
-
 def _mask_box(mask: np.ndarray) -> BBox | None:
     rows, cols = np.flatnonzero(mask.any(axis=1)), np.flatnonzero(mask.any(axis=0))
     if not len(rows):
@@ -182,8 +176,8 @@ def _fill_scale(pixels: np.ndarray, offset: int) -> FoundScale | None:
     colours = colour.continuous_fill_scale(pixels)
     if len(colours) < MIN_SCALE_STEPS:
         return None
-    bins = np.unique(_colour_bins(np.round(colours * 255.0).astype(np.uint8)))
-    region = _mask_box(np.isin(_colour_bins(pixels), bins))
+    bins = np.unique(colour.colour_bins(np.round(colours * 255.0).astype(np.uint8)))
+    region = _mask_box(np.isin(colour.colour_bins(pixels), bins))
     if region is None:
         return None
     return FoundScale("fills", _shift(region, offset), colours, colour.analyse_scale(colours))
@@ -400,7 +394,7 @@ def _box_pixels(pixels: np.ndarray, box: BBox, margin: int) -> np.ndarray:
 def _modal_colour(samples: np.ndarray) -> np.ndarray:
     """The most common exact colour inside the most common 5-bit bin, 0..1: the bin makes it
     robust to JPEG noise, the exact mode keeps anti-aliased edge pixels from tinting it."""
-    bins = _colour_bins(samples)
+    bins = colour.colour_bins(samples)
     members = samples[bins == np.bincount(bins).argmax()].astype(np.int32)
     codes = (members[:, 0] << 16) | (members[:, 1] << 8) | members[:, 2]
     values, counts = np.unique(codes, return_counts=True)

@@ -13,6 +13,7 @@ import cv2
 import numpy as np
 
 from corpusaudit.measure import measurement
+from corpusaudit.measure.colour import colour_bins, extract_palette
 from corpusaudit.measure.legend import in_any
 from corpusaudit.measure.shapes import (
     background_rgb, bbox_area, colour_distance, colour_key, component_stats, intersect, is_rect_like, is_vector,
@@ -79,8 +80,6 @@ def _vector_rects(figure: Figure, plot: BBox, frames: list[BBox]) -> list[Bar]:
 
 
 def _raster_rects(rgb: np.ndarray, plot: BBox) -> list[Bar]:
-    from corpusaudit.measure.colour import extract_palette
-
     x0, y0, x1, y1 = (int(round(v)) for v in plot)
     inner = rgb[y0 + 2:y1 - 1, x0 + 2:x1 - 1]
     if inner.size == 0:
@@ -119,8 +118,9 @@ def _framed(inner: np.ndarray) -> np.ndarray:
     covered by bars: bars that reach the plot's edges on most sides (a bar at the axis maximum,
     bars filling the band) must not make their colour the palette's background. The rim added
     is the lightest of the rim's common colours, which is the panel (bars are drawn on it)."""
-    rim = np.concatenate([inner[0], inner[-1], inner[:, 0], inner[:, -1]], axis=0).astype(np.int32)
-    keys = (rim[:, 0] >> 3 << 10) | (rim[:, 1] >> 3 << 5) | (rim[:, 2] >> 3)
+    rim = np.concatenate([inner[0], inner[-1], inner[:, 0], inner[:, -1]], axis=0)
+    keys = colour_bins(rim)
+    rim = rim.astype(np.int32)
     counts = np.bincount(keys)
     common = np.flatnonzero(counts >= 0.1 * len(rim))  # colours along a tenth of the rim or more
     panel = max((rim[keys == key].mean(axis=0) for key in common), key=lambda c: float(c.sum()))

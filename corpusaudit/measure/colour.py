@@ -369,9 +369,10 @@ _QUANT_BITS = 5  # 32 levels per channel: colours within ~8/255 share a bin
 _QUANT_SHIFT = 8 - _QUANT_BITS
 
 
-def _bin_index(rgb_uint8: np.ndarray) -> np.ndarray:
-    """Each pixel's bin: 15 bits (the top 5 of each channel) in a uint16, which is also
-    several times faster to compute than in a wider integer."""
+def colour_bins(rgb_uint8: np.ndarray) -> np.ndarray:
+    """Each colour's bin of 32 levels per channel (colours within ~8/255 share one): 15 bits,
+    the top 5 of each channel, in a uint16, which is several times faster to compute than a
+    wider integer."""
     q = (rgb_uint8 >> _QUANT_SHIFT).astype(np.uint16)
     return (q[..., 0] << (2 * _QUANT_BITS)) | (q[..., 1] << _QUANT_BITS) | q[..., 2]
 
@@ -405,7 +406,7 @@ def estimate_background(rgb_uint8: np.ndarray, mask: np.ndarray | None = None) -
     border = _border_pixels(rgb_uint8, mask)
     if len(border) == 0:
         raise ValueError("the mask selects no pixels")
-    bins = _bin_index(border)
+    bins = colour_bins(border)
     modal = np.bincount(bins).argmax()
     return tuple(float(v) for v in border[bins == modal].mean(axis=0) / 255.0)
 
@@ -452,7 +453,7 @@ def _colour_clusters(
     _check_image(rgb_uint8, mask)
     height, width = rgb_uint8.shape[:2]
     n_bins = 1 << (3 * _QUANT_BITS)
-    bins = _bin_index(rgb_uint8)
+    bins = colour_bins(rgb_uint8)
     # Pixels outside the mask go to one extra bin, dropped below: no gathers over the image.
     selected = bins if mask is None else np.where(mask, bins, n_bins)
     counts = np.bincount(selected.ravel(), minlength=n_bins + 1)[:n_bins].astype(np.float64)

@@ -30,6 +30,7 @@ import numpy as np
 from scipy.sparse import coo_matrix
 from scipy.sparse.csgraph import connected_components
 
+from corpusaudit.measure.colour import colour_bins
 from corpusaudit.model import BBox, RGB
 
 MIN_CONTRAST = 14  # grey levels from the local background: JPEG noise on flat areas stays below
@@ -323,8 +324,7 @@ def _heights(top: np.ndarray, bottom: np.ndarray, aspect: np.ndarray) -> tuple[f
 
 def _modal(samples: np.ndarray) -> np.ndarray:
     """The mean colour of the most common 8-level bin: robust to JPEG noise and to blends."""
-    q = (samples >> 3).astype(np.int32)
-    bins = (q[:, 0] << 10) | (q[:, 1] << 5) | q[:, 2]
+    bins = colour_bins(samples)
     return samples[bins == np.bincount(bins).argmax()].mean(axis=0) / 255.0
 
 

@@ -11,6 +11,7 @@ import math
 import cv2
 import numpy as np
 
+from corpusaudit.measure.colour import colour_bins
 from corpusaudit.model import BBox, Figure, MeasurementUnavailable, PathItem, RGB
 
 NEUTRAL_CHROMA = 0.08  # max(rgb) - min(rgb) below this: a grey (axes, grid, text, frames)
@@ -105,7 +106,7 @@ def is_rect_like(path: PathItem) -> bool:
 def background_rgb(rgb: np.ndarray) -> np.ndarray:
     """The modal border colour (0..255 floats): the figure's background."""
     border = np.concatenate([rgb[0], rgb[-1], rgb[:, 0], rgb[:, -1]], axis=0)
-    keys = (border[:, 0].astype(np.int32) >> 3 << 10) | (border[:, 1].astype(np.int32) >> 3 << 5) | (border[:, 2] >> 3)
+    keys = colour_bins(border)
     modal = np.bincount(keys).argmax()
     return border[keys == modal].mean(axis=0)
 
