@@ -52,6 +52,9 @@ class TextSpan:
     angle: float  # degrees counter-clockwise from horizontal, 0 = normal reading
     colour: RGB = (0.0, 0.0, 0.0)
     font: str = ""
+    # The separately drawn runs this span was joined from, (text, bbox) each, when more than
+    # one: neighbouring tick labels that touch are read as one span.
+    runs: tuple[tuple[str, BBox], ...] = ()
 
 
 @dataclass

@@ -21,7 +21,8 @@ from corpusaudit.extract.raster import (FULL_PAGE_SHARE, PieceGroup, group_piece
 from corpusaudit.extract.regions import (SCATTER_MERGE_PT, Region, attach_labels, attach_titles, group_ink, label_like,
                                          merge_overlapping, union, vector_verdict)
 from corpusaudit.extract.scan import figure_boxes
-from corpusaudit.extract.vector_evidence import fast_rect, read_drawings, read_text, vector_evidence
+from corpusaudit.extract.vector_evidence import (fast_rect, read_drawings, read_text, read_text_runs,
+                                                   vector_evidence)
 from corpusaudit.model import Document, Figure
 
 pymupdf.TOOLS.mupdf_display_errors(False)
@@ -109,8 +110,8 @@ class _Page:
         self._display = display
         self.bounds = pymupdf.Rect(0, 0, page.cropbox.width, page.cropbox.height)
         self.rotation = page.rotation_matrix
-        # A page of more paths than are searched is read directly: its display list is large.
-        self.text = read_text(page, self.display if estimated_paths <= config.max_paths_per_page else self._display)
+        self.text = read_text(page, self._text_display)
+        self._text_runs: dict | None = None
         self.lines = text_lines(self.text)
         self.captions = caption_candidates(self.lines, pattern)
         self.errors: list[str] = []
@@ -121,6 +122,18 @@ class _Page:
         if self._display is None:
             self._display = self.page.get_displaylist()
         return self._display
+
+    @property
+    def _text_display(self) -> pymupdf.DisplayList | None:
+        # A page of more paths than are searched is read directly: its display list is large.
+        return self.display if self.estimated_paths <= self.config.max_paths_per_page else self._display
+
+    @property
+    def text_runs(self) -> dict:
+        """The page's text as drawn (read_text_runs), read when a vector figure needs it."""
+        if self._text_runs is None:
+            self._text_runs = read_text_runs(self.page, self._text_display)
+        return self._text_runs
 
     def shown(self, rect: pymupdf.Rect) -> pymupdf.Rect:
         return pymupdf.Rect(rect) * self.rotation
@@ -417,7 +430,8 @@ def _page_figures(reading: _Page, infos: list[dict], repeated: set[tuple]) -> tu
     for region, caption in merged:
         shown = reading.shown(region.box)
         pixels = render_clip(reading.display, shown, config.dpi)
-        evidence = vector_evidence(page, region.box, scale, drawings=drawings, text=reading.text) \
+        evidence = vector_evidence(page, region.box, scale, drawings=drawings, text=reading.text,
+                                   runs=reading.text_runs) \
             if region.paths or region.labels else None
         if region.pictures:
             group = PieceGroup([p for i in region.pictures for p in pictures[i].pieces])

@@ -228,14 +228,18 @@ def read_text(page: pymupdf.Page, display: pymupdf.DisplayList | None = None) ->
     return pymupdf.TextPage(display.get_textpage(flags=TEXT_FLAGS)).extractDICT(cb=page.cropbox)
 
 
-def text_spans(page: pymupdf.Page, clip: pymupdf.Rect, scale: float, text: dict | None = None) -> list[TextSpan]:
-    """Text spans inside clip with their size (pt), angle (degrees) and colour, in figure pixels.
+def read_text_runs(page: pymupdf.Page, display: pymupdf.DisplayList | None = None) -> dict:
+    """The page's text as drawn: each text-showing run its own line, not joined to its
+    neighbours (read_text joins runs that touch into one span)."""
+    display = unrotated_display(page, display)
+    flags = TEXT_FLAGS | pymupdf.TEXT_PRESERVE_SPANS
+    if display is None:
+        return page.get_text("dict", flags=flags)
+    return pymupdf.TextPage(display.get_textpage(flags=flags)).extractDICT(cb=page.cropbox)
 
-    text: the page's read_text() when already read; spans are kept when their centre is in clip.
-    """
-    matrix = figure_matrix(page, clip, scale)
-    data = read_text(page) if text is None else text
-    spans: list[TextSpan] = []
+
+def _page_spans(data: dict, clip: pymupdf.Rect):
+    """(line, span) of every non-blank span whose centre lies in clip."""
     for block in data["blocks"]:
         if block.get("type", 0) != 0:
             continue
@@ -243,33 +247,63 @@ def text_spans(page: pymupdf.Page, clip: pymupdf.Rect, scale: float, text: dict 
         if bx0 > clip.x1 or bx1 < clip.x0 or by0 > clip.y1 or by1 < clip.y0:
             continue
         for line in block.get("lines", ()):
-            cos, sin = line["dir"]
-            # direction as displayed: the rotation part of the page matrix, y grows downwards
-            shown_cos = cos * matrix.a + sin * matrix.c
-            shown_sin = cos * matrix.b + sin * matrix.d
-            angle = round(math.degrees(math.atan2(-shown_sin, shown_cos)), 2) + 0.0  # +0.0 drops -0.0
             for span in line["spans"]:
-                text_value = span["text"].strip()
-                if not text_value:
-                    continue
                 x0, y0, x1, y1 = span["bbox"]
-                cx, cy = (x0 + x1) / 2, (y0 + y1) / 2
-                if not (clip.x0 <= cx <= clip.x1 and clip.y0 <= cy <= clip.y1):
-                    continue
-                spans.append(TextSpan(
-                    text=text_value, bbox=_box((x0, y0, x1, y1), matrix),
-                    size_pt=round(float(span["size"]), 2), angle=angle,
-                    colour=_rgb_from_int(int(span["color"])), font=span.get("font", ""),
-                ))
+                if span["text"].strip() and clip.x0 <= (x0 + x1) / 2 <= clip.x1 and clip.y0 <= (y0 + y1) / 2 <= clip.y1:
+                    yield line, span
+
+
+def _runs_by_row(runs: dict, clip: pymupdf.Rect) -> dict[tuple[float, float], list[tuple[str, tuple]]]:
+    """Text runs inside clip grouped by their row (top and bottom, to 0.1 pt)."""
+    rows: dict[tuple[float, float], list[tuple[str, tuple]]] = {}
+    for _, span in _page_spans(runs, clip):
+        x0, y0, x1, y1 = span["bbox"]
+        rows.setdefault((round(y0, 1), round(y1, 1)), []).append((span["text"].strip(), (x0, y0, x1, y1)))
+    return rows
+
+
+def _joined_runs(bbox: tuple, rows: dict, matrix: pymupdf.Matrix) -> tuple[tuple[str, tuple], ...]:
+    """The runs of one row that lie within a span's box, in figure pixels; () for a single run."""
+    x0, y0, x1, y1 = bbox
+    inside = [(text, box) for text, box in rows.get((round(y0, 1), round(y1, 1)), ())
+              if box[0] >= x0 - 0.5 and box[2] <= x1 + 0.5]
+    if len(inside) < 2:
+        return ()
+    return tuple((text, _box(box, matrix)) for text, box in sorted(inside, key=lambda run: run[1][0]))
+
+
+def text_spans(page: pymupdf.Page, clip: pymupdf.Rect, scale: float, text: dict | None = None,
+               runs: dict | None = None) -> list[TextSpan]:
+    """Text spans inside clip with their size (pt), angle (degrees) and colour, in figure pixels.
+
+    text, runs: the page's read_text() and read_text_runs() when already read; spans are kept
+    when their centre is in clip. A span joined from several drawn runs keeps them (TextSpan.runs).
+    """
+    matrix = figure_matrix(page, clip, scale)
+    data = read_text(page) if text is None else text
+    rows = _runs_by_row(read_text_runs(page) if runs is None else runs, clip)
+    spans: list[TextSpan] = []
+    for line, span in _page_spans(data, clip):
+        cos, sin = line["dir"]
+        # direction as displayed: the rotation part of the page matrix, y grows downwards
+        shown_cos = cos * matrix.a + sin * matrix.c
+        shown_sin = cos * matrix.b + sin * matrix.d
+        bbox = span["bbox"]
+        spans.append(TextSpan(
+            text=span["text"].strip(), bbox=_box(bbox, matrix), size_pt=round(float(span["size"]), 2),
+            angle=round(math.degrees(math.atan2(-shown_sin, shown_cos)), 2) + 0.0,  # +0.0 drops -0.0
+            colour=_rgb_from_int(int(span["color"])), font=span.get("font", ""),
+            runs=_joined_runs(bbox, rows, matrix),
+        ))
     return spans
 
 
-def vector_evidence(page: pymupdf.Page, clip: pymupdf.Rect, scale: float,
-                    drawings: list[dict] | None = None, text: dict | None = None) -> VectorEvidence:
+def vector_evidence(page: pymupdf.Page, clip: pymupdf.Rect, scale: float, drawings: list[dict] | None = None,
+                    text: dict | None = None, runs: dict | None = None) -> VectorEvidence:
     """Evidence for the region clip (unrotated page points, as PyMuPDF reports drawings and text).
 
     Figure pixels are those of the region rendered as displayed (page rotation applied) at
-    scale pixels per point. drawings and text may be passed when already read.
+    scale pixels per point. drawings, text and runs may be passed when already read.
     """
     if drawings is None:
         drawings = read_drawings(page)
@@ -277,7 +311,7 @@ def vector_evidence(page: pymupdf.Page, clip: pymupdf.Rect, scale: float,
     inside = [d for d in drawings if d["rect"].x0 <= clip.x1 and d["rect"].x1 >= clip.x0
               and d["rect"].y0 <= clip.y1 and d["rect"].y1 >= clip.y0]
     matrix = figure_matrix(page, clip, scale)
-    return VectorEvidence(texts=text_spans(page, clip, scale, text),
+    return VectorEvidence(texts=text_spans(page, clip, scale, text, runs),
                           paths=path_items(inside, matrix, scale), scale=scale)
 
 

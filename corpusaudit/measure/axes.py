@@ -354,6 +354,32 @@ def _select_labels(spans: list[TextSpan], plot: BBox, side: str, scale: float) -
     return sorted(chosen, key=lambda s: s.bbox[0] + s.bbox[2])
 
 
+def _split_at_ticks(spans: list[TextSpan], marks: list[float]) -> list[TextSpan]:
+    """x labels with one span per tick: a span drawn as several runs that covers two or more
+    tick marks (neighbouring labels that touch or overlap) is split, each run going to the
+    mark nearest its middle."""
+    split: list[TextSpan] = []
+    for span in spans:
+        covered = [m for m in marks if span.bbox[0] <= m <= span.bbox[2]]
+        if len(covered) < 2 or not span.runs:
+            split.append(span)
+            continue
+        by_mark: dict[float, list[tuple[str, BBox]]] = {}
+        for text, box in span.runs:
+            middle = (box[0] + box[2]) / 2
+            by_mark.setdefault(min(covered, key=lambda m: abs(m - middle)), []).append((text, box))
+        gap = 0.25 * (span.bbox[3] - span.bbox[1])
+        for mark in sorted(by_mark):
+            runs = by_mark[mark]
+            text = runs[0][0]
+            for (_, before), (word, box) in zip(runs, runs[1:]):
+                text += (" " if box[0] - before[2] > gap else "") + word
+            boxes = np.array([box for _, box in runs])
+            bbox = tuple(float(v) for v in (*boxes.min(axis=0)[:2], *boxes.max(axis=0)[2:]))
+            split.append(replace(span, text=text, bbox=bbox, runs=()))
+    return split
+
+
 def _number(span: TextSpan) -> float | None:
     return _number_text(span.text) if span.font == "ocr" else parse_number(span.text)
 
@@ -445,7 +471,7 @@ def axes(figure: Figure, measurements) -> Axes:
     marks = measurements.get("tick_marks")
     if is_vector(figure):
         spans, scale = figure.vector.texts, figure.vector.scale
-        x_labels = [_span_tick(s, "x") for s in _select_labels(spans, plot, "x", scale)]
+        x_labels = [_span_tick(s, "x") for s in _split_at_ticks(_select_labels(spans, plot, "x", scale), marks["x"])]
         y_labels = [_span_tick(s, "y") for s in _select_labels(spans, plot, "y", scale)]
     else:
         rgb = require_pixels(figure)
