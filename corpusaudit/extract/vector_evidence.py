@@ -318,14 +318,16 @@ def vector_evidence(page: pymupdf.Page, clip: pymupdf.Rect, scale: float, drawin
 def figure_from_chart_pdf(pdf: bytes, figure_id: str, chart_type: str = "", dpi: int = 150):
     """A vector Figure from a one-page chart PDF placed on a letter page, read back as extraction would.
 
-    For fixtures and benchmarks whose truth is the chart itself (no page layout to find)."""
+    For fixtures and benchmarks whose truth is the chart itself (no page layout to find).
+    Paths are read as extraction reads them: cut to their clip (visible_drawings)."""
+    from corpusaudit.extract.pdf import visible_drawings
     from corpusaudit.model import Figure
 
     source = pymupdf.open("pdf", pdf)
     page = pymupdf.open().new_page(width=612, height=792)
     rect = pymupdf.Rect(36, 60, 36 + source[0].rect.width, 60 + source[0].rect.height)
     page.show_pdf_page(rect, source, 0)
-    evidence = vector_evidence(page, rect, dpi / 72.0)
+    evidence = vector_evidence(page, rect, dpi / 72.0, drawings=visible_drawings(page))
     pix = page.get_pixmap(dpi=dpi, clip=rect, alpha=False)
     pixels = np.frombuffer(pix.samples, np.uint8).reshape(pix.height, pix.width, pix.n)[:, :, :3].copy()
     return Figure(figure_id=figure_id, document_id="fixture", path=f"{figure_id}.pdf", page=1, index=0,
