@@ -100,9 +100,12 @@ def pie_order(ctx: CheckContext) -> Outcome:
     problem="""Slice labels of 45%, 30% and 35%, which add up to 110%.""",
     better="""Labels that total 100% (or a bar chart when several answers were allowed).""",
     limitations="""Needs percentage labels on or beside the slices; labels that state counts are not summed.
-        A slice whose label cannot be read (overlapping labels, text recognition misses) counts with
-        its drawn share, which widens the tolerance by half a point per such slice; light text on
-        dark slices is not read on rasters.""",
+        A slice whose label cannot be read or placed (text recognition misses, a label on the boundary
+        between two slices, labels printed over one another that cannot be read apart) counts with its
+        drawn share, which widens the tolerance by half a point per such slice. On rasters, labels
+        printed over one another are read apart only where the chart puts its labels at one distance
+        along the slices' middles; light text on dark slices is not read; a pie with a surface in no
+        measured slice's colour (a slice the measurement missed, shading) is left unmeasured.""",
 )
 def pie_total(ctx: CheckContext) -> Outcome:
     pie = ctx.measure("pie")

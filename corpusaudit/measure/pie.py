@@ -506,7 +506,13 @@ class Percentage:
 
 
 _LUMA = np.array([0.299, 0.587, 0.114], np.float32)  # ITU-R BT.601 luma weights
-_PERCENTAGE = re.compile(r"(\d+(?:[.,]\d+)?)\s*%")
+# A minus sign counts only where it starts the number: '10-15%' is a range, not -15 %.
+_PERCENTAGE = re.compile(r"((?<![\d.,])[-\u2212])?(\d+(?:[.,]\d+)?)\s*%")
+
+
+def _value(match: re.Match) -> float:
+    """The signed number of a percentage match (a negative label is itself a faulty total)."""
+    return (-1.0 if match.group(1) else 1.0) * float(match.group(2).replace(",", "."))
 
 
 @measurement("pie_percentages")
@@ -515,20 +521,16 @@ def pie_percentages(figure: Figure, measurements) -> list[Percentage]:
 
     Vector: the stated text. Raster: the text lines found by colour (pixels that are neither
     a slice colour nor background), redrawn black on white and read by OCR in one call.
-    Two labels that touch ('7.9%15.5%') are both read.
+    Two labels that touch ('7.9%15.5%') are both read; labels printed over one another are
+    read again one by one where each is expected (see _reread_overlapping).
     """
     geometry = measurements.get("pie")
-    cx, cy = geometry.centre
-    reach = 1.5 * geometry.radius
     spans = figure.vector.texts if is_vector(figure) else _raster_label_lines(require_pixels(figure), geometry)
     found, near = [], []
     for span in spans:
-        x0, y0, x1, y1 = span.bbox
-        # how far the label's nearest point is: a long label beside the pie starts close to it
-        gap = float(np.hypot(max(x0 - cx, 0.0, cx - x1), max(y0 - cy, 0.0, cy - y1)))
         for match in _PERCENTAGE.finditer(span.text):
-            found.append(Percentage(value=float(match.group(1).replace(",", ".")), bbox=span.bbox))
-            near.append(gap <= reach)
+            found.append(Percentage(value=_value(match), bbox=span.bbox))
+            near.append(_near(geometry, span.bbox))
     if len(found) == len(geometry.slices):
         return found  # one percentage per slice, wherever printed (a legend with values)
     return [label for label, close in zip(found, near) if close]
@@ -557,10 +559,10 @@ def pie_label_total(figure: Figure, measurements) -> LabelTotal:
     labels = measurements.get("pie_percentages")
     if not labels:
         raise MeasurementUnavailable("no percentage labels read")
-    if len(labels) == len(geometry.slices):
+    if len(labels) == len(geometry.slices):  # one per slice, wherever printed (a legend with values)
         return LabelTotal(total=sum(p.value for p in labels), labelled=len(labels), estimated=0, uncertainty=0.0)
-    # Fewer labels than slices: each read label stands for the slice it sits on; two labels
-    # on one slice (or one off the pie) cannot be placed and that slice counts by its share.
+    # Otherwise each read label stands for the slice it sits on; two labels on one slice, or
+    # one on a boundary, cannot be placed and that slice counts by its share.
     owners = [_slice_at(geometry, label.bbox) for label in labels]
     placed = {owner: label for owner, label in zip(owners, labels) if owner is not None and owners.count(owner) == 1}
     if not placed:
@@ -570,14 +572,33 @@ def pie_label_total(figure: Figure, measurements) -> LabelTotal:
                       labelled=len(placed), estimated=len(missing), uncertainty=SHARE_UNCERTAINTY * len(missing))
 
 
-def _slice_at(geometry: Pie, box: BBox) -> int | None:
-    """Index of the slice a label sits on or beside (by its angle from the centre)."""
+def _near(geometry: Pie, box: BBox) -> bool:
+    """Whether a label lies on or beside the pie: its nearest point within 1.5 radii of the
+    centre (a long label beside the pie starts close to it)."""
     cx, cy = geometry.centre
-    angle = float(np.degrees(np.arctan2(-((box[1] + box[3]) / 2 - cy), (box[0] + box[2]) / 2 - cx)) % 360.0)
+    gap = float(np.hypot(max(box[0] - cx, 0.0, cx - box[2]), max(box[1] - cy, 0.0, cy - box[3])))
+    return gap <= 1.5 * geometry.radius
+
+
+def _slice_at(geometry: Pie, box: BBox) -> int | None:
+    """Index of the slice a label sits on or beside (by its angle from the centre), or None
+    when its centre lies within half its height of a boundary between slices, away from the
+    slice's middle: which of the two it labels cannot be told. (A label centred on a slice
+    thinner than itself is placed.)"""
+    cx, cy = geometry.centre
+    dx, dy = (box[0] + box[2]) / 2 - cx, -((box[1] + box[3]) / 2 - cy)
+    angle, reach = float(np.degrees(np.arctan2(dy, dx)) % 360.0), float(np.hypot(dx, dy))
     for index, piece in enumerate(geometry.slices):
-        if (angle - piece.start) % 360.0 < piece.span:
-            return index
+        along = (angle - piece.start) % 360.0
+        if along < piece.span:
+            # distance from the nearer of the slice's two radial edges
+            edge = min(along, piece.span - along)
+            clearance = reach * np.sin(np.radians(edge)) if edge < 90.0 else reach
+            return index if clearance >= 0.5 * (box[3] - box[1]) or edge >= 0.3 * piece.span else None
     return None
+
+
+DARK_SLICE = 100.0  # sRGB distance from black within which a slice colour may be that of the labels
 
 
 def _text_ink(rgb: np.ndarray, geometry: Pie) -> tuple[np.ndarray, tuple[int, int]]:
@@ -585,8 +606,11 @@ def _text_ink(rgb: np.ndarray, geometry: Pie) -> tuple[np.ndarray, tuple[int, in
 
     Text is ink that is far from the background and, on a slice, neither a slice colour nor
     a blend of a slice colour with the background: so the separator lines between slices and
-    their antialiasing drop out. The pie's rim and the hole's edge are removed. Text in the
-    background colour (white labels on dark slices) is not read.
+    their antialiasing drop out. A dark slice colour, which text may share, is excluded only
+    on and within antialiasing reach of its own slice (and off the pie: legend swatches), so
+    that a thin black slice does not erase the black labels of the others. The pie's rim and
+    the hole's edge are removed. Text in the background colour (white labels on dark slices)
+    is not read.
     """
     height, width = rgb.shape[:2]
     cx, cy = geometry.centre
@@ -594,21 +618,31 @@ def _text_ink(rgb: np.ndarray, geometry: Pie) -> tuple[np.ndarray, tuple[int, in
     x0, y0 = max(0, int(cx - reach)), max(0, int(cy - reach))
     x1, y1 = min(width, int(np.ceil(cx + reach))), min(height, int(np.ceil(cy + reach)))
     crop = rgb[y0:y1, x0:x1]
-    slice_colours = np.array([s.colour for s in geometry.slices], np.float32)
     background = background_rgb(rgb)
-    nearest_slice = np.min(np.stack([colour_distance(crop, c) for c in slice_colours]), axis=0)
-    blend = np.min(np.stack([_distance_to_segment(crop, c, background) for c in slice_colours]), axis=0)
     yy, xx = np.mgrid[y0:y1, x0:x1]
     distance = np.hypot(xx - cx, yy - cy)
     on_slices = (distance < radius) & (distance > geometry.hole)
+    angle = np.degrees(np.arctan2(-(yy - cy), xx - cx)) % 360.0
+    margin = np.degrees(3.0 / np.maximum(distance, 1.0))  # antialiasing reaches ~3 px across a boundary
+    nearest_slice = np.full(crop.shape[:2], np.inf, np.float32)
+    blend = np.full(crop.shape[:2], np.inf, np.float32)
+    for piece in geometry.slices:
+        colour = np.asarray(piece.colour, np.float32)
+        near, mixed = colour_distance(crop, colour), _distance_to_segment(crop, colour, background)
+        if float(np.linalg.norm(colour)) < DARK_SLICE:
+            along = (angle - piece.start) % 360.0
+            outside = np.where(along < piece.span, 0.0, np.minimum(along - piece.span, 360.0 - along))  # degrees
+            elsewhere = on_slices & (outside > margin)
+            near, mixed = np.where(elsewhere, np.inf, near), np.where(elsewhere, np.inf, mixed)
+        nearest_slice, blend = np.minimum(nearest_slice, near), np.minimum(blend, mixed)
     ink = (colour_distance(crop, background) > 60) & (nearest_slice > 40) & np.where(on_slices, blend > 25, True)
     edges = (np.abs(distance - radius) < 3) | ((geometry.hole > 0) & (np.abs(distance - geometry.hole) < 3))
     # Where three colours meet (two slices and the separator) blends are not on one segment:
     # along the boundaries only dark pixels (text crossing them) are kept.
     boundaries = np.zeros(ink.shape, np.uint8)
     for piece in geometry.slices:
-        angle = np.radians(piece.start)
-        rim = (int(round(cx + radius * np.cos(angle) - x0)), int(round(cy - radius * np.sin(angle) - y0)))
+        rad = np.radians(piece.start)
+        rim = (int(round(cx + radius * np.cos(rad) - x0)), int(round(cy - radius * np.sin(rad) - y0)))
         cv2.line(boundaries, (int(round(cx - x0)), int(round(cy - y0))), rim, 1, 3)
     light = crop.astype(np.float32) @ _LUMA > 80
     return ink & ~edges & ~(boundaries.astype(bool) & light), (x0, y0)
@@ -639,9 +673,32 @@ def _underlying_luma(rgb: np.ndarray, geometry: Pie, offset: tuple[int, int], sh
     return np.maximum(under, 1.0)
 
 
+UNMEASURED_SOLID = 0.05  # of the radius: ink this thick on the pie is a surface, not a text stroke
+
+
+def _require_measured_colours(ink: np.ndarray, geometry: Pie, offset: tuple[int, int]) -> None:
+    """Raise when part of the pie is a surface in none of the measured slices' colours (a
+    slice the geometry missed, shading, a pattern): that slice's share and label would both
+    be lost, and the labels read would not add up for a reason of the measurement's own."""
+    ox, oy = offset
+    yy, xx = np.mgrid[oy:oy + ink.shape[0], ox:ox + ink.shape[1]]
+    distance = np.hypot(xx - geometry.centre[0], yy - geometry.centre[1])
+    side = max(5, int(round(UNMEASURED_SOLID * geometry.radius)))
+    on_pie = (ink & (distance < geometry.radius) & (distance > geometry.hole)).astype(np.uint8)
+    solid = cv2.morphologyEx(on_pie, cv2.MORPH_OPEN, np.ones((side, side), np.uint8))
+    if int(solid.sum()) >= 2 * side * side:
+        raise MeasurementUnavailable("part of the pie is in no measured slice's colour (a missed slice or shading)")
+
+
 def _raster_label_lines(rgb: np.ndarray, geometry: Pie) -> list[TextSpan]:
-    """Label lines near the pie, read by OCR; a line counts when three readings agree."""
+    """Label lines near the pie, read by OCR; a line counts when three readings agree.
+
+    Labels of thin neighbouring slices printed over one another merge into one line that
+    reads partly or not at all; where the chart puts its labels at one distance from the
+    centre along each slice's middle, each of them is read again on its own, in a window
+    where it is expected."""
     ink, (ox, oy) = _text_ink(rgb, geometry)
+    _require_measured_colours(ink, geometry, (ox, oy))
     closed = cv2.dilate(ink.astype(np.uint8), np.ones((3, 7), np.uint8))
     _, stats, _ = component_stats(closed, min_area=12)
     limit = 0.4 * geometry.radius
@@ -649,7 +706,6 @@ def _raster_label_lines(rgb: np.ndarray, geometry: Pie) -> list[TextSpan]:
              if 5 <= bh <= limit and bh <= bw <= 2.5 * limit]  # a percentage is wider than tall
     if not boxes:
         return []
-    # The lines stacked on a white page, each in its own band: one OCR call reads them all.
     # Text keeps its antialiased levels, measured against what lies under it (a dark slice
     # would otherwise blacken the glyphs' edges and fill their holes); all else turns white.
     crop = rgb[oy:oy + ink.shape[0], ox:ox + ink.shape[1]]
@@ -657,6 +713,19 @@ def _raster_label_lines(rgb: np.ndarray, geometry: Pie) -> list[TextSpan]:
     grey = np.clip(255.0 * luma / _underlying_luma(rgb, geometry, (ox, oy), ink.shape), 0, 255)
     near_text = cv2.dilate(ink.astype(np.uint8), np.ones((3, 3), np.uint8)).astype(bool)
     grey = np.where(near_text, grey, 255).astype(np.uint8)
+    per_box = []
+    for (bx, by, bw, bh), words in zip(boxes, _ocr_boxes(grey, boxes)):
+        texts = tuple("".join(w.text for w in scale) for scale in words)
+        per_box.append(_agreed_percentages(texts, (ox + bx, oy + by, ox + bx + bw, oy + by + bh)))
+    _reread_overlapping(grey, geometry, (ox, oy), boxes, per_box)
+    return _restore_decimal_points([line for lines in per_box for line in lines])
+
+
+def _ocr_boxes(grey: np.ndarray, boxes: list[tuple[int, int, int, int]]) -> list[list[list[TextSpan]]]:
+    """The words OCR reads in each (x, y, width, height) box of a greyscale image, at three
+    scales (a misread digit seldom repeats at another scale): per box, per scale, the words
+    left to right, their boxes relative to the box's corner. The boxes are stacked on one
+    white page, each in its own band, so that one call per scale reads them all."""
     pad = 6
     page_width = max(bw for _, _, bw, _ in boxes) + 2 * pad
     page = np.full((sum(bh + 2 * pad for *_, bh in boxes), page_width), 255, np.uint8)
@@ -665,23 +734,102 @@ def _raster_label_lines(rgb: np.ndarray, geometry: Pie) -> list[TextSpan]:
         page[top + pad:top + pad + bh, pad:pad + bw] = grey[by:by + bh, bx:bx + bw]
         bands.append((top, top + bh + 2 * pad))
         top += bh + 2 * pad
-    # Three readings at different scales; a misread digit seldom repeats at another scale.
     glyph = float(np.median([bh for *_, bh in boxes]))
-    readings = []
+    per_scale = []
     for target in (20.0, 30.0, 40.0):
-        words = ocr_words(np.dstack([page] * 3), (0, 0, page_width, top), psm=6, whitelist="0123456789.,%",
+        words = ocr_words(np.dstack([page] * 3), (0, 0, page_width, top), psm=6, whitelist="0123456789.,%-",
                           upscale=float(np.clip(target / glyph, 1.5, 5.0)))
-        readings.append(["".join(w.text for w in sorted((w for w in words if b0 <= (w.bbox[1] + w.bbox[3]) / 2 < b1),
-                                                         key=lambda w: w.bbox[0]))
-                         for b0, b1 in bands])
-    lines = []
-    for (bx, by, bw, bh), texts in zip(boxes, zip(*readings)):
-        lines.extend(_agreed_percentages(texts, (ox + bx, oy + by, ox + bx + bw, oy + by + bh)))
-    return _restore_decimal_points(lines)
+        per_scale.append([[TextSpan(text=w.text, bbox=(w.bbox[0] - pad, w.bbox[1] - b0 - pad, w.bbox[2] - pad,
+                                                       w.bbox[3] - b0 - pad), size_pt=0.0, angle=0.0, font="ocr")
+                           for w in sorted(words, key=lambda w: w.bbox[0]) if b0 <= (w.bbox[1] + w.bbox[3]) / 2 < b1]
+                          for b0, b1 in bands])
+    return [list(scales) for scales in zip(*per_scale)]
+
+
+LABEL_RADIUS_SPREAD = 0.03  # of the radius: labels put at one distance from the centre agree this well
+
+
+def _label_radius(geometry: Pie, labels: list[TextSpan]) -> float | None:
+    """The distance from the centre (in radii) at which the chart prints its labels, when
+    the labels read sit on their slices' middle directions at one distance (as matplotlib's
+    autopct and most tools place them); None when fewer than three do or they disagree."""
+    cx, cy = geometry.centre
+    fractions = []
+    for label in labels:
+        index = _slice_at(geometry, label.bbox)
+        if index is None:
+            continue
+        dx, dy = (label.bbox[0] + label.bbox[2]) / 2 - cx, -((label.bbox[1] + label.bbox[3]) / 2 - cy)
+        turn = np.radians(np.degrees(np.arctan2(dy, dx)) - geometry.slices[index].middle)
+        # within a quarter of the label's height of the slice's middle direction
+        if np.cos(turn) > 0 and np.hypot(dx, dy) * abs(np.sin(turn)) <= 0.25 * (label.bbox[3] - label.bbox[1]):
+            fractions.append(float(np.hypot(dx, dy)) / geometry.radius)
+    if len(fractions) < 3:
+        return None
+    middle = float(np.median(fractions))
+    agreeing = sum(abs(f - middle) <= LABEL_RADIUS_SPREAD for f in fractions)
+    return middle if agreeing >= 2 * len(fractions) / 3 else None
+
+
+WINDOW_CHARS = (4.0, 4.5, 5.0, 5.5)  # widths, in characters, of the windows a label is read in again
+
+
+def _reread_overlapping(grey: np.ndarray, geometry: Pie, offset: tuple[int, int],
+                        boxes: list[tuple[int, int, int, int]], per_box: list[list[TextSpan]]) -> None:
+    """Read again, each on its own, the labels of a line that holds the expected places of
+    more labels than it read (labels printed over one another), replacing its reading.
+
+    A label is expected at the chart's label distance along its slice's middle direction,
+    and read in windows of a line's height and WINDOW_CHARS characters' width centred there:
+    a narrow window leaves out the neighbours' glyphs but may cut a long label ('4.1%' of
+    '24.1%'), a wide one holds the whole label. The reading of the narrowest window on which
+    all three scales agree counts, unless a wider window reads another percentage there (a
+    narrower one may read part of it)."""
+    singles = [(lines[0], box) for lines, box in zip(per_box, boxes) if len(lines) == 1]
+    fraction = _label_radius(geometry, [line for lines in per_box for line in lines])
+    if fraction is None or len(singles) < 2:
+        return
+    ox, oy = offset
+    # a character's width: the lines' boxes are 6 px wider than their text (the dilation's 7 columns)
+    pitch = float(np.median([(bw - 6) / len(line.text) for line, (_, _, bw, _) in singles]))
+    height = int(round(np.median([bh for _, (_, _, _, bh) in singles])))
+    cx, cy = geometry.centre
+    expected = [(cx + fraction * geometry.radius * np.cos(np.radians(p.middle)) - ox,
+                 cy - fraction * geometry.radius * np.sin(np.radians(p.middle)) - oy) for p in geometry.slices]
+    crowded = []
+    for index, (bx, by, bw, bh) in enumerate(boxes):
+        inside = [(ex, ey) for ex, ey in expected if bx <= ex < bx + bw and by <= ey < by + bh]
+        if len(inside) >= 2 and len(per_box[index]) < len(inside):
+            crowded.append((index, inside))
+    if not crowded:
+        return
+    rows, cols = grey.shape
+    windows = []
+    for _, inside in crowded:
+        for ex, ey in inside:
+            for chars in WINDOW_CHARS:
+                x0, y0 = max(0, int(round(ex - chars * pitch / 2))), max(0, int(round(ey - height / 2)))
+                windows.append((x0, y0, min(cols, x0 + int(round(chars * pitch))) - x0, min(rows, y0 + height) - y0))
+    readings = iter(zip(windows, _ocr_boxes(grey, windows)))
+    for index, inside in crowded:
+        found = []
+        for _ in inside:
+            agreed, seen = [], []
+            for (wx, wy, ww, wh), words in (next(readings) for _ in WINDOW_CHARS):
+                texts = tuple("".join(w.text for w in scale) for scale in words)
+                seen.append({_value(m) for text in texts for m in _PERCENTAGE.finditer(text)})
+                agreed.append(_agreed_percentages(texts, (ox + wx, oy + wy, ox + wx + ww, oy + wy + wh)))
+            narrowest = next((k for k, a in enumerate(agreed) if len(a) == 1), None)
+            if narrowest is None:
+                continue
+            reading = agreed[narrowest][0]
+            if set().union(*seen[narrowest:]) == {_value(_PERCENTAGE.match(reading.text))}:
+                found.append(reading)
+        per_box[index] = found
 
 
 def _decimals(text: str) -> int:
-    number = _PERCENTAGE.match(text).group(1)
+    number = _PERCENTAGE.match(text).group(2)
     return len(re.split(r"[.,]", number)[1]) if re.search(r"[.,]", number) else 0
 
 
@@ -689,16 +837,20 @@ def _restore_decimal_points(labels: list[TextSpan]) -> list[TextSpan]:
     """The labels of one chart share a number format, and the decimal point is the glyph
     text recognition loses most often ('119%' for '11.9%', the same at every scale). When
     most other labels have d decimals, a label read with none and more than d digits gets
-    its point back d digits from the end."""
+    its point back d digits from the end. One with no more digits than d ('8%' among
+    'x.x%' labels: part of it lost under an overlapping label) is no reading and is dropped."""
     kept = []
     for index, label in enumerate(labels):
         others = [_decimals(other.text) for k, other in enumerate(labels) if k != index]
-        digits = _PERCENTAGE.match(label.text).group(1)
+        match = _PERCENTAGE.match(label.text)
+        sign, digits = match.group(1) or "", match.group(2)
         common = max(set(others), key=others.count) if others else 0
-        if common and others.count(common) > len(others) / 2 and _decimals(label.text) == 0 and len(digits) > common:
-            label = TextSpan(text=f"{digits[:-common]}.{digits[-common:]}%", bbox=label.bbox, size_pt=label.size_pt,
-                             angle=label.angle, font=label.font)
-        if float(_PERCENTAGE.match(label.text).group(1).replace(",", ".")) <= 100.0:  # no part exceeds the whole
+        if common and others.count(common) > len(others) / 2 and _decimals(label.text) == 0:
+            if len(digits) <= common:
+                continue
+            label = TextSpan(text=f"{sign}{digits[:-common]}.{digits[-common:]}%", bbox=label.bbox,
+                             size_pt=label.size_pt, angle=label.angle, font=label.font)
+        if _value(_PERCENTAGE.match(label.text)) <= 100.0:  # no part exceeds the whole
             kept.append(label)
     return kept
 
@@ -709,7 +861,7 @@ def _agreed_percentages(texts: tuple[str, ...], box: BBox) -> list[TextSpan]:
     labels of thin slices) are split into their percentages, each with its share of the
     line's box (by character position), so each can be placed on its own slice."""
     found = [[m for m in _PERCENTAGE.finditer(text)] for text in texts]
-    values = [[m.group(1).replace(",", ".") for m in matches] for matches in found]
+    values = [[_value(m) for m in matches] for matches in found]
     if not values[0] or any(v != values[0] for v in values):
         return []
     text = texts[0]
