@@ -151,3 +151,24 @@ def test_bends_are_not_judged_beside_lines_with_markers():
     assert outcome([unmarked]).findings  # alone, its bends are judged: steps 17, 188, 25 px
     beside = outcome([marked, unmarked])
     assert not beside.findings and beside.unmeasured
+
+
+def test_samples_hidden_on_a_flat_stretch_are_not_judged():
+    # ten even samples; the six in the middle repeat one value, so four of them show no bend
+    # (steps between bends 60, 60, 300, 60, 60): even samples with a flat stretch, or a gap
+    xs = [60.0 + 60 * k for k in range(10)]
+    ys = _zigzag(xs)
+    for k in range(3, 8):
+        ys[k] = ys[2]
+    _, outcome = _judge(_draw([(xs, ys, (31, 119, 180))]))
+    assert outcome.unmeasured and not outcome.findings
+
+
+def test_steps_that_need_many_samples_hidden_on_slopes_are_judged():
+    # steps 248, 52, 26, 24, 127, 73 px are whole multiples of about 25 px within the bend
+    # error, but as even samples 16 of them would lie exactly on sloping stretches
+    xs = [40.0, 288, 340, 366, 390, 517, 590]
+    _, outcome = _judge(_draw([(xs, _zigzag(xs), (31, 119, 180))]))
+    assert not outcome.unmeasured
+    assert len(outcome.findings) == 1
+    assert float(outcome.findings[0].value) == pytest.approx(248 / 24, rel=0.1)

@@ -161,8 +161,9 @@ def line_uneven_axis(ctx: CheckContext) -> Outcome:
     better="""A marker at each sample (or a visible break in the line) so readers see where the data are.""",
     limitations="""Needs the sample positions: vector vertices, or markers visible in pixels; for a raster
         line without markers, the places where it bends. A raster line crossed by another at a bend, dashed, or
-        whose bends could be an even grid with some samples on straight stretches, is left unmeasured; smoothed
-        vector curves hide their samples.""",
+        whose bends could be an even grid with some samples on straight stretches (any number on flat stretches,
+        at most one for every two bends on sloping ones), is left unmeasured; smoothed vector curves hide their
+        samples.""",
 )
 def line_marker_gaps(ctx: CheckContext) -> Outcome:
     series = ctx.measure("line_series")
@@ -179,7 +180,7 @@ def line_marker_gaps(ctx: CheckContext) -> Outcome:
         if not line.points or (line.bends and marked):
             unjudged = True
             continue
-        xs = np.unique(np.round([x for x, _ in line.points], 1))
+        xs, first = np.unique(np.round([x for x, _ in line.points], 1), return_index=True)
         if len(xs) > ctx.options["max_samples"]:
             continue
         if len(xs) < 4:
@@ -189,7 +190,7 @@ def line_marker_gaps(ctx: CheckContext) -> Outcome:
         ratio = steps.max() / max(steps.min(), 1e-6)
         if ratio <= limit:
             continue
-        if line.bends and _even_with_hidden_samples(steps):
+        if line.bends and _even_with_hidden_samples(steps, np.diff([line.points[k][1] for k in first])):
             unjudged = True
             continue
         return Outcome(findings=(Draft(message=f"samples {ratio:.1f}x unevenly spaced along x, drawn without markers",
@@ -201,16 +202,25 @@ def line_marker_gaps(ctx: CheckContext) -> Outcome:
 
 BEND_POSITION_ERROR = 2.0  # pixels: where a raster line's bend is found along x (about a stroke width; common practice, no source)
 END_SLACK = 0.1  # share of the sample step: a line's ends are found less exactly (caps, unseen end markers; common practice, no source)
+# Samples that show no bend lie exactly on the straight line through their neighbours. On a
+# flat stretch (a value repeated) that is common; on a sloping one it needs exactly linear
+# data, so at most one such sample for every two that show is thought plausible (a rule of
+# thumb of ours, no source).
+HIDDEN_PER_SHOWN = 0.5
 
 
-def _even_with_hidden_samples(steps: np.ndarray) -> bool:
-    """Whether bends with these x steps could be evenly spaced samples of which some lie on a
-    straight stretch (and so show no bend): every step a whole multiple of one sample step
-    (the least-squares step for the multiples the smallest step gives), within the error
-    of two bend positions."""
+def _even_with_hidden_samples(steps: np.ndarray, rises: np.ndarray) -> bool:
+    """Whether bends with these x steps (and y rises, pixels) could be evenly spaced samples of
+    which some lie on a straight stretch (and so show no bend): every step a whole multiple of
+    one sample step (the least-squares step for the multiples the smallest step gives), within
+    the error of two bend positions, and no more hidden samples on sloping stretches than
+    HIDDEN_PER_SHOWN allows."""
     multiples = np.maximum(np.round(steps / steps.min()), 1)
     unit = float(multiples @ steps / (multiples @ multiples))
-    return bool(np.all(np.abs(steps - multiples * unit) <= 2 * BEND_POSITION_ERROR + END_SLACK * unit))
+    if not np.all(np.abs(steps - multiples * unit) <= 2 * BEND_POSITION_ERROR + END_SLACK * unit):
+        return False
+    sloping = np.abs(rises) > 2 * BEND_POSITION_ERROR
+    return float(((multiples - 1) * sloping).sum()) <= HIDDEN_PER_SHOWN * (len(steps) + 1)
 
 
 @rule(
