@@ -185,3 +185,12 @@ def test_two_bends_closer_than_a_join_are_not_placed():
     assert all(abs(x - 224) > 10 for x in placed)
     assert series[0].unplaced == (1,)  # both lie in the step from the sample at 140
     assert outcome.unmeasured and not outcome.findings
+
+
+def test_three_samples_hidden_in_a_row_on_a_slope_are_not_assumed():
+    # steps 60, 60, 60, 240, 60, 60: as even samples, three in a row would lie exactly on one
+    # sloping stretch (five collinear samples), which is not assumed: the gap is reported
+    xs = [60.0, 120, 180, 240, 480, 540, 600]
+    _, outcome = _judge(_draw([(xs, _zigzag(xs), (31, 119, 180))]))
+    assert not outcome.unmeasured
+    assert float(outcome.findings[0].value) == pytest.approx(4.0, rel=0.1)

@@ -162,9 +162,10 @@ def line_uneven_axis(ctx: CheckContext) -> Outcome:
     limitations="""Needs the sample positions: vector vertices, or markers visible in pixels; for a raster
         line without markers, the places where it bends. Bends where another line crosses, too shallow or too
         close together to place, leave the stretch around them unjudged; a raster line's largest step is
-        compared with its median step (a spurious bend makes a short one); a dashed raster line, or one whose bends
-        could be an even grid with some samples on straight stretches (any number on flat stretches, at most one
-        for every two bends on sloping ones), is left unmeasured; smoothed vector curves hide their samples.""",
+        compared with its median step (a spurious bend makes a short one); a dashed raster line, or one whose
+        bends could be an even grid with some samples on straight stretches (any number on flat stretches; on
+        sloping ones at most one for every two bends and two in a row), is left unmeasured; smoothed vector
+        curves hide their samples.""",
 )
 def line_marker_gaps(ctx: CheckContext) -> Outcome:
     series = ctx.measure("line_series")
@@ -215,9 +216,10 @@ BEND_POSITION_ERROR = 2.0  # pixels: where a raster line's bend is found along x
 END_SLACK = 0.1  # share of the sample step: a line's ends are found less exactly (caps, unseen end markers; common practice, no source)
 # Samples that show no bend lie exactly on the straight line through their neighbours. On a
 # flat stretch (a value repeated) that is common; on a sloping one it needs exactly linear
-# data, so at most one such sample for every two that show is thought plausible (a rule of
-# thumb of ours, no source).
+# data, so at most one such sample for every two that show, and at most two in a row, are
+# thought plausible (rules of thumb of ours, no source).
 HIDDEN_PER_SHOWN = 0.5
+HIDDEN_IN_A_ROW = 2
 
 
 def _even_with_hidden_samples(steps: np.ndarray, rises: np.ndarray, free: np.ndarray) -> bool:
@@ -225,14 +227,14 @@ def _even_with_hidden_samples(steps: np.ndarray, rises: np.ndarray, free: np.nda
     which some lie on a straight stretch (and so show no bend): every step a whole multiple of
     one sample step (the least-squares step for the multiples the smallest step gives), within
     the error of two bend positions, and no more hidden samples on sloping stretches than
-    HIDDEN_PER_SHOWN allows. Free steps (over a bend that could not be placed) may hold any
+    HIDDEN_PER_SHOWN and HIDDEN_IN_A_ROW allow. Free steps (over a bend that could not be placed) may hold any
     number of samples."""
     multiples = np.maximum(np.round(steps / steps.min()), 1)
     unit = float(multiples @ steps / (multiples @ multiples))
     if not np.all(np.abs(steps - multiples * unit) <= 2 * BEND_POSITION_ERROR + END_SLACK * unit):
         return False
-    sloping = (np.abs(rises) > 2 * BEND_POSITION_ERROR) & ~free
-    return float(((multiples - 1) * sloping).sum()) <= HIDDEN_PER_SHOWN * (len(steps) + 1)
+    hidden = (multiples - 1) * ((np.abs(rises) > 2 * BEND_POSITION_ERROR) & ~free)
+    return bool(hidden.max() <= HIDDEN_IN_A_ROW and hidden.sum() <= HIDDEN_PER_SHOWN * (len(steps) + 1))
 
 
 @rule(
