@@ -6,7 +6,7 @@ the runner with default settings, and prints per-rule precision and recall for v
 raster separately, plus measurement errors. A rule that could not measure counts as not
 reporting (a miss when the truth is positive) and is counted in the 'unmeasured' column.
 
-    python benchmarks/checks.py [--cases 220] [--seed 20240517]
+    python benchmarks/checks.py [--cases 400] [--seed 20240517]
 """
 
 from __future__ import annotations
@@ -117,7 +117,7 @@ def print_report(report: dict) -> None:
 
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--cases", type=int, default=220)
+    parser.add_argument("--cases", type=int, default=400)
     parser.add_argument("--seed", type=int, default=20240517)
     args = parser.parse_args()
     report = run(args.cases, args.seed)

@@ -91,7 +91,8 @@ def test_a_shallow_bend_is_not_placed_and_not_judged():
     xs = [60.0, 220, 380, 540]
     ys = [100.0, 180, 252, 172]
     series, outcome = _judge(_draw([(xs, ys, (31, 119, 180))]))
-    assert series[0].bends and not series[0].points
+    assert series[0].bends and series[0].unplaced == (0,)  # the step from the first sample holds it
+    assert all(abs(x - 220) > 30 for x, _ in series[0].points)
     assert outcome.unmeasured and not outcome.findings
 
 
@@ -108,7 +109,8 @@ def test_a_bend_where_another_line_crosses_is_not_judged():
     other_y = [ys[3] - 0.5 * (UNEVEN[3] - 20), ys[3] + 0.5 * (620 - UNEVEN[3])]
     series, outcome = _judge(_draw([(UNEVEN, ys, (31, 119, 180)), (other_x, other_y, (214, 39, 40))]))
     first = next(s for s in series if s.colour[2] > 150)
-    assert first.bends and not first.points
+    assert first.bends and len(first.unplaced) == 1
+    assert all(abs(x - UNEVEN[3]) > 10 for x, _ in first.points)  # the crossed bend is not placed
     assert not outcome.findings
 
 
@@ -151,3 +153,44 @@ def test_bends_are_not_judged_beside_lines_with_markers():
     assert outcome([unmarked]).findings  # alone, its bends are judged: steps 17, 188, 25 px
     beside = outcome([marked, unmarked])
     assert not beside.findings and beside.unmeasured
+
+
+def test_samples_hidden_on_a_flat_stretch_are_not_judged():
+    # ten even samples; the six in the middle repeat one value, so four of them show no bend
+    # (steps between bends 60, 60, 300, 60, 60): even samples with a flat stretch, or a gap
+    xs = [60.0 + 60 * k for k in range(10)]
+    ys = _zigzag(xs)
+    for k in range(3, 8):
+        ys[k] = ys[2]
+    _, outcome = _judge(_draw([(xs, ys, (31, 119, 180))]))
+    assert outcome.unmeasured and not outcome.findings
+
+
+def test_steps_that_need_many_samples_hidden_on_slopes_are_judged():
+    # steps 248, 52, 26, 24, 127, 73 px are whole multiples of about 25 px within the bend
+    # error, but as even samples 16 of them would lie exactly on sloping stretches
+    xs = [40.0, 288, 340, 366, 390, 517, 590]
+    _, outcome = _judge(_draw([(xs, _zigzag(xs), (31, 119, 180))]))
+    assert not outcome.unmeasured
+    assert len(outcome.findings) == 1
+    assert float(outcome.findings[0].value) == pytest.approx(248 / 62.5, rel=0.1)  # largest step against the median
+
+
+def test_two_bends_closer_than_a_join_are_not_placed():
+    # samples 8 px apart: the round join of one steep bend can leave two vertices that close,
+    # so neither is placed and the even steps around them cannot show the gap
+    xs = [60.0, 140, 220, 228, 300, 380, 460]
+    series, outcome = _judge(_draw([(xs, _zigzag(xs), (31, 119, 180))]))
+    placed = [x for x, _ in series[0].points]
+    assert all(abs(x - 224) > 10 for x in placed)
+    assert series[0].unplaced == (1,)  # both lie in the step from the sample at 140
+    assert outcome.unmeasured and not outcome.findings
+
+
+def test_three_samples_hidden_in_a_row_on_a_slope_are_not_assumed():
+    # steps 60, 60, 60, 240, 60, 60: as even samples, three in a row would lie exactly on one
+    # sloping stretch (five collinear samples), which is not assumed: the gap is reported
+    xs = [60.0, 120, 180, 240, 480, 540, 600]
+    _, outcome = _judge(_draw([(xs, _zigzag(xs), (31, 119, 180))]))
+    assert not outcome.unmeasured
+    assert float(outcome.findings[0].value) == pytest.approx(4.0, rel=0.1)

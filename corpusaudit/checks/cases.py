@@ -71,11 +71,20 @@ def _unsorted(rng: np.random.Generator, values: list[float]) -> list[float]:
             return order
 
 
-def _cyclic_sorted(values: list[float]) -> bool:
+def _default(rule_id: str, key: str) -> float:
+    """A rule's default threshold, as the registry declares it."""
+    from corpusaudit.checks.registry import all_rules
+
+    rule = next(r for r in all_rules() if r.id == rule_id)
+    return next(option.default for option in rule.options if option.key == key)
+
+
+def _cyclic_sorted(values: list[float], tie: float = 1e-9) -> bool:
+    """Sorted going round from some slice, either way; differences up to tie count as ties."""
     for start in range(len(values)):
         rotated = values[start:] + values[:start]
         steps = np.diff(rotated)
-        if (steps >= -1e-9).all() or (steps <= 1e-9).all():
+        if (steps >= -tie).all() or (steps <= tie).all():
             return True
     return False
 
@@ -97,12 +106,14 @@ def pie_case(rng: np.random.Generator, index: int) -> Case:
     if shuffled:
         while _cyclic_sorted(shares):
             shares = list(rng.permutation(shares))
+        # out of order only by a near tie is in order for pie-order (its documented tie tolerance)
+        shuffled = not _cyclic_sorted(shares, _default("pie-order", "tolerance"))
     labels = invented_names(rng, n)
     label_mode = rng.choice(["none", "true", "false"], p=[0.3, 0.4, 0.3])
     offset = float(rng.choice([-1, 1]) * rng.uniform(6, 15)) if label_mode == "false" else 0.0
     printed = [100 * s for s in shares]
     if label_mode == "false":
-        printed[0] += offset
+        printed[0] += offset if printed[0] + offset > 0 else -offset  # a wrong share, never a negative one
     donut = bool(rng.random() < 0.25)
     edge = bool(rng.random() < 0.5)
     # A quarter of the full pies are exploded: one slice pulled out, or every slice a little.
@@ -282,6 +293,38 @@ def line_case(rng: np.random.Generator, index: int) -> Case:
     return Case(f"line-{index}", "line", draw, truth, {"series": series, "rotation": rotation})
 
 
+def sampled_line_case(rng: np.random.Generator, index: int) -> Case:
+    """Yearly samples on a numeric x axis, all present or with some missing, drawn with or
+    without markers: the cases line-marker-gaps decides."""
+    series = int(rng.integers(1, 4))
+    n = int(rng.integers(7, 13))
+    start = int(rng.integers(1990, 2011))
+    uneven = bool(rng.random() < 0.6)
+    markers = bool(rng.random() < 0.3)
+    years = np.arange(start, start + n, dtype=float)
+    if uneven and rng.random() < 0.5:
+        # a survey run in a few irregular years
+        years = np.sort(rng.choice(np.arange(start, start + 4 * n), n, replace=False)).astype(float)
+        while np.diff(years).max() / np.diff(years).min() < 3:
+            years = np.sort(rng.choice(np.arange(start, start + 4 * n), n, replace=False)).astype(float)
+    elif uneven:
+        # a yearly series with a run of two to four years missing
+        missing = int(rng.integers(2, 5))
+        first = int(rng.integers(1, n - 1))
+        years = np.concatenate([np.arange(start, start + first), np.arange(start + first + missing, start + n + missing)])
+        years = years.astype(float)
+    curves = [np.cumsum(rng.normal(0, 1, len(years))) + 3 * k for k in range(series)]
+
+    def draw(fig):
+        ax = fig.add_subplot()
+        for k, y in enumerate(curves):
+            ax.plot(years, y, color=f"C{k}", marker="o" if markers else None)
+
+    truth = {"line-marker-gaps": uneven and not markers, "line-series-count": False, "line-on-categories": False,
+             "line-uneven-axis": False, "tick-label-rotation": False, "line-direct-labels": False}
+    return Case(f"line-{index}", "line", draw, truth, {"series": series, "rotation": 0.0})
+
+
 def area_case(rng: np.random.Generator, index: int) -> Case:
     layers = int(rng.integers(1, 8))
     stacked = bool(rng.random() < 0.5) and layers >= 2
@@ -397,7 +440,7 @@ def box_case(rng: np.random.Generator, index: int) -> Case:
 
 FAMILIES: tuple[tuple[Callable[[np.random.Generator, int], Case], float], ...] = (
     (pie_case, 0.2), (pie3d_case, 0.03), (bar_case, 0.2), (stacked_bar_case, 0.08), (bar3d_case, 0.03),
-    (line_case, 0.18), (area_case, 0.08), (scatter_case, 0.1), (box_case, 0.1),
+    (line_case, 0.18), (sampled_line_case, 0.08), (area_case, 0.08), (scatter_case, 0.1), (box_case, 0.1),
 )
 
 

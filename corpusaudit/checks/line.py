@@ -160,9 +160,12 @@ def line_uneven_axis(ctx: CheckContext) -> Outcome:
         markers.""",
     better="""A marker at each sample (or a visible break in the line) so readers see where the data are.""",
     limitations="""Needs the sample positions: vector vertices, or markers visible in pixels; for a raster
-        line without markers, the places where it bends. A raster line crossed by another at a bend, dashed, or
-        whose bends could be an even grid with some samples on straight stretches, is left unmeasured; smoothed
-        vector curves hide their samples.""",
+        line without markers, the places where it bends. Bends where another line crosses, too shallow or too
+        close together to place, leave the stretch around them unjudged; a raster line's largest step is
+        compared with its median step (a spurious bend makes a short one); a dashed raster line, or one whose
+        bends could be an even grid with some samples on straight stretches (any number on flat stretches; on
+        sloping ones at most one for every two bends and two in a row), is left unmeasured; smoothed vector
+        curves hide their samples.""",
 )
 def line_marker_gaps(ctx: CheckContext) -> Outcome:
     series = ctx.measure("line_series")
@@ -179,19 +182,29 @@ def line_marker_gaps(ctx: CheckContext) -> Outcome:
         if not line.points or (line.bends and marked):
             unjudged = True
             continue
-        xs = np.unique(np.round([x for x, _ in line.points], 1))
+        xs, first = np.unique(np.round([x for x, _ in line.points], 1), return_index=True)
         if len(xs) > ctx.options["max_samples"]:
             continue
-        if len(xs) < 4:
+        steps = np.diff(xs)
+        # steps holding a bend that could not be placed: a sample may lie inside them
+        free = np.zeros(len(steps), bool)
+        for k in line.unplaced:
+            free[np.searchsorted(xs, (line.points[k][0] + line.points[k + 1][0]) / 2) - 1] = True
+        if (~free).sum() < 3:
             unjudged = unjudged or line.bends  # bends are the samples that show: more may hide on straight stretches
             continue
-        steps = np.diff(xs)
-        ratio = steps.max() / max(steps.min(), 1e-6)
+        certain = steps[~free]
+        ratio = certain.max() / max(certain.min(), 1e-6)
         if ratio <= limit:
+            unjudged = unjudged or bool(free.any())
             continue
-        if line.bends and _even_with_hidden_samples(steps):
-            unjudged = True
-            continue
+        if line.bends:
+            # a spurious bend (a join or a crossing read as two) makes a short step: on rasters
+            # the largest step is judged against the median one, and a short step alone decides nothing
+            ratio = certain.max() / np.median(certain)
+            if ratio <= limit or _even_with_hidden_samples(steps, np.diff([line.points[k][1] for k in first]), free):
+                unjudged = True
+                continue
         return Outcome(findings=(Draft(message=f"samples {ratio:.1f}x unevenly spaced along x, drawn without markers",
                                        value=f"{ratio:.1f}", threshold=f"{limit:g}", region=line.bbox),))
     if unjudged:
@@ -201,16 +214,27 @@ def line_marker_gaps(ctx: CheckContext) -> Outcome:
 
 BEND_POSITION_ERROR = 2.0  # pixels: where a raster line's bend is found along x (about a stroke width; common practice, no source)
 END_SLACK = 0.1  # share of the sample step: a line's ends are found less exactly (caps, unseen end markers; common practice, no source)
+# Samples that show no bend lie exactly on the straight line through their neighbours. On a
+# flat stretch (a value repeated) that is common; on a sloping one it needs exactly linear
+# data, so at most one such sample for every two that show, and at most two in a row, are
+# thought plausible (rules of thumb of ours, no source).
+HIDDEN_PER_SHOWN = 0.5
+HIDDEN_IN_A_ROW = 2
 
 
-def _even_with_hidden_samples(steps: np.ndarray) -> bool:
-    """Whether bends with these x steps could be evenly spaced samples of which some lie on a
-    straight stretch (and so show no bend): every step a whole multiple of one sample step
-    (the least-squares step for the multiples the smallest step gives), within the error
-    of two bend positions."""
+def _even_with_hidden_samples(steps: np.ndarray, rises: np.ndarray, free: np.ndarray) -> bool:
+    """Whether bends with these x steps (and y rises, pixels) could be evenly spaced samples of
+    which some lie on a straight stretch (and so show no bend): every step a whole multiple of
+    one sample step (the least-squares step for the multiples the smallest step gives), within
+    the error of two bend positions, and no more hidden samples on sloping stretches than
+    HIDDEN_PER_SHOWN and HIDDEN_IN_A_ROW allow. Free steps (over a bend that could not be placed) may hold any
+    number of samples."""
     multiples = np.maximum(np.round(steps / steps.min()), 1)
     unit = float(multiples @ steps / (multiples @ multiples))
-    return bool(np.all(np.abs(steps - multiples * unit) <= 2 * BEND_POSITION_ERROR + END_SLACK * unit))
+    if not np.all(np.abs(steps - multiples * unit) <= 2 * BEND_POSITION_ERROR + END_SLACK * unit):
+        return False
+    hidden = (multiples - 1) * ((np.abs(rises) > 2 * BEND_POSITION_ERROR) & ~free)
+    return bool(hidden.max() <= HIDDEN_IN_A_ROW and hidden.sum() <= HIDDEN_PER_SHOWN * (len(steps) + 1))
 
 
 @rule(

@@ -33,6 +33,9 @@ class Series:
     has_markers: bool | None  # None: not measured
     bbox: BBox
     bends: bool = False  # points are where an unmarked raster stroke bends: the samples that show, not all of them
+    # Steps (k: from points[k] to points[k + 1]) over which a bend was seen but could not be
+    # placed (too shallow, or where another line or a gap distorts the stroke): a sample may lie there.
+    unplaced: tuple[int, ...] = ()
 
 
 def _marker_centres(figure: Figure, plot: BBox, frames: list[BBox]) -> list[tuple[float, float, tuple]]:
@@ -224,18 +227,25 @@ def _markers_of(mask: np.ndarray) -> tuple[list[tuple[float, float]], float]:
 
 JOIN_WIDTHS = 3.0  # a line join spreads over about this many stroke widths (common practice, no source)
 BEND_TOLERANCE = 1.5  # pixels: a stroke's centre line wanders by up to about a pixel (anti-aliasing, JPEG)
+# The round join of a steep bend leaves two vertices on the centre line up to about four stroke
+# widths apart (seen on matplotlib renderings at 100 to 200 dpi; no published source).
+CLOSE_WIDTHS = 5.0
 
 
-def _bends(mask: np.ndarray, columns: np.ndarray, stroke: float, others: np.ndarray | None) -> list[tuple[float, float]]:
-    """The vertices of a polyline stroke, its ends included: the stroke's centre line (the
-    median row of its pixels in each column, holes closed first, gaps bridged linearly) simplified
-    by Douglas-Peucker (cv2.approxPolyDP) within BEND_TOLERANCE (or most of a stroke width:
-    a sharp bend of a thick stroke flattens its centre line over the join).
-    Samples where the line goes on straight leave no bend, so this is a subset of the samples.
-    Where another series (others: its pixels) crosses or touches the stroke, the centre line
-    is pulled aside, and where columns of the stroke are missing (another colour on top, JPEG
-    shifting a thin line's colour) the bridge cuts the corner: a bend near either may be no
-    sample, and then no bends are returned (not measured)."""
+def _bends(mask: np.ndarray, columns: np.ndarray, stroke: float,
+           others: np.ndarray | None) -> tuple[list[tuple[float, float]], tuple[int, ...]]:
+    """The vertices of a polyline stroke that can be placed, its ends included, and the steps
+    between them that hold a bend that cannot (Series.unplaced).
+
+    Vertices come from the stroke's centre line (the median row of its pixels in each column,
+    holes closed first, gaps bridged linearly) simplified by Douglas-Peucker (cv2.approxPolyDP)
+    within BEND_TOLERANCE (or most of a stroke width: a sharp bend of a thick stroke flattens
+    its centre line over the join). Samples where the line goes on straight leave no bend, so
+    this is a subset of the samples. A bend is not placed where it is too shallow to place
+    along x within two joins, where another series (others: its pixels) crosses or touches the
+    stroke (the centre line is pulled aside), where columns of the stroke are missing
+    (another colour on top, JPEG shifting a thin line's colour: the bridge cuts the corner), or
+    where two bends are so close that they may be one (CLOSE_WIDTHS)."""
     part = mask[:, columns.min():columns.max() + 1]
     # bridge the holes that grid-line removal and crossing lines leave (up to 6 pixels)
     part = cv2.morphologyEx(part, cv2.MORPH_CLOSE, np.ones((7, 1), np.uint8))
@@ -262,18 +272,30 @@ def _bends(mask: np.ndarray, columns: np.ndarray, stroke: float, others: np.ndar
              (ends.get(g, vertices[groups == g].mean(axis=0)) for g in range(groups[-1] + 1))]
     placed = np.asarray(bends)
     slopes = np.diff(placed[:, 1]) / np.maximum(np.diff(placed[:, 0]), 1.0)
-    if len(placed) > 2 and (BEND_TOLERANCE / np.maximum(np.abs(np.diff(slopes)), 1e-6)).max() > 2 * JOIN_WIDTHS * max(stroke, 1.0):
-        return []  # a bend too shallow to place along x within two joins: the samples' spacing is not seen
+    shallow = BEND_TOLERANCE / np.maximum(np.abs(np.diff(slopes)), 1e-6) > 2 * JOIN_WIDTHS * max(stroke, 1.0)
     reach = int(np.ceil(JOIN_WIDTHS * max(stroke, 1.0)))
     missing = np.ones(len(span), bool)
     missing[present] = False
-    for x, y in bends[1:-1]:
+    placeable = [True]
+    for (x, y), too_shallow in zip(bends[1:-1], shallow):
         cx, cy = int(round(x)), int(round(y))
-        if missing[max(0, cx - columns.min() - reach):cx - columns.min() + reach + 1].any():
-            return []  # the centre line was bridged there: the bend may be a cut corner
-        if others is not None and others[max(0, cy - reach):cy + reach + 1, max(0, cx - reach):cx + reach + 1].any():
-            return []
-    return bends
+        placeable.append(not (too_shallow or missing[max(0, cx - columns.min() - reach):cx - columns.min() + reach + 1].any()
+                              or (others is not None and others[max(0, cy - reach):cy + reach + 1,
+                                                                max(0, cx - reach):cx + reach + 1].any())))
+    placeable.append(True)
+    # Two bends closer than CLOSE_WIDTHS may be one bend whose rounded join the centre line
+    # leaves as two vertices: neither is placed.
+    close = np.diff([x for x, _ in bends]) < CLOSE_WIDTHS * max(stroke, 1.0)
+    for k in np.flatnonzero(close):
+        placeable[k] = placeable[k] and k == 0
+        placeable[k + 1] = placeable[k + 1] and k + 1 == len(bends) - 1
+    kept, unplaced = [], set()
+    for bend, ok in zip(bends, placeable):
+        if ok:
+            kept.append(bend)
+        else:
+            unplaced.add(len(kept) - 1)
+    return kept, tuple(sorted(unplaced))
 
 
 def _raster_series(rgb: np.ndarray, plot: BBox) -> list[Series]:
@@ -326,15 +348,16 @@ def _raster_series(rgb: np.ndarray, plot: BBox) -> list[Series]:
         spread = covered[columns.min():columns.max() + 1]
         dashes = "dashed" if (~spread).mean() > 0.15 else ""
         ys, xs = np.nonzero(mask)
-        samples, bends = markers, False
+        samples, bends, unplaced = markers, False, ()
         if not markers and not dashes:  # dashes hide bends
             others = np.any([k[3] for j, k in enumerate(kept) if j != index], axis=0) if len(kept) > 1 else None
-            samples, bends = _bends(full.astype(np.uint8), columns, stroke, others), True
+            (samples, unplaced), bends = _bends(full.astype(np.uint8), columns, stroke, others), True
         series.append(Series(colour=tuple(int(round(v)) for v in colour), dashes=dashes,
                              points=tuple((x0 + 3 + x, y0 + 3 + y) for x, y in samples),
                              has_markers=bool(markers),
                              bbox=(float(x0 + 3 + xs.min()), float(y0 + 3 + ys.min()),
-                                   float(x0 + 3 + xs.max()), float(y0 + 3 + ys.max())), bends=bends))
+                                   float(x0 + 3 + xs.max()), float(y0 + 3 + ys.max())), bends=bends,
+                             unplaced=unplaced))
     return series
 
 
