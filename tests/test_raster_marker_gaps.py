@@ -9,6 +9,7 @@ default, common practice (no source); so is the bend position error the rule all
 
 from __future__ import annotations
 
+import cv2
 import numpy as np
 import pytest
 from PIL import Image, ImageDraw
@@ -19,6 +20,7 @@ from corpusaudit.checks.runner import check_figure
 from corpusaudit.config import build_config
 from corpusaudit.measure import Measurements
 from corpusaudit.measure.lines import _raster_series
+from corpusaudit.model import Figure
 
 SCALE = 4
 WIDTH, HEIGHT = 640, 420
@@ -173,7 +175,7 @@ def test_steps_that_need_many_samples_hidden_on_slopes_are_judged():
     _, outcome = _judge(_draw([(xs, _zigzag(xs), (31, 119, 180))]))
     assert not outcome.unmeasured
     assert len(outcome.findings) == 1
-    assert float(outcome.findings[0].value) == pytest.approx(248 / 62.5, rel=0.1)  # largest step against the median
+    assert float(outcome.findings[0].value) == pytest.approx(248 / 24, rel=0.1)
 
 
 def test_two_bends_closer_than_a_join_are_not_placed():
@@ -194,3 +196,45 @@ def test_three_samples_hidden_in_a_row_on_a_slope_are_not_assumed():
     _, outcome = _judge(_draw([(xs, _zigzag(xs), (31, 119, 180))]))
     assert not outcome.unmeasured
     assert float(outcome.findings[0].value) == pytest.approx(4.0, rel=0.1)
+
+
+@pytest.mark.xfail(strict=True, reason="JPEG at quality 80 splits gentle corners of some lines into vertices "
+                   "17 to 29 px apart that no single corner explains: a false finding (known weakness)")
+def test_even_lines_saved_as_jpeg_pass():
+    # four even series (invented random walks) saved as JPEG at quality 80
+    curves = [[0.42, -0.02, 0.15, 0.33, -0.32, -0.63, -1.25, 0.31], [3.31, 4.31, 4.71, 5.75, 5.3, 5.58, 4.42, 4.76],
+              [6.29, 4.58, 2.77, 1.71, 2.23, 1.45, 1.0, -1.09], [12.24, 11.92, 10.59, 9.03, 10.15, 10.0, 10.25, 10.55]]
+
+    def draw(fig):
+        ax = fig.add_subplot()
+        for k, y in enumerate(curves):
+            ax.plot(np.arange(8) * 5.0, y, color=f"C{k}")
+
+    rendered = raster_figure(Case("even", "line", draw, {}, size=(6.355, 3.333), font_size=8.37)).pixels
+    ok, encoded = cv2.imencode(".jpg", rendered[:, :, ::-1], [cv2.IMWRITE_JPEG_QUALITY, 80])
+    pixels = np.ascontiguousarray(cv2.imdecode(encoded, cv2.IMREAD_COLOR)[:, :, ::-1])
+    figure = Figure(figure_id="even-r", document_id="test", path="even.png", page=1, index=0,
+                    bbox=(0, 0, pixels.shape[1], pixels.shape[0]), source="raster", width_px=pixels.shape[1],
+                    height_px=pixels.shape[0], effective_ppi=150.0, pixels=pixels, chart_type="line")
+    for line in Measurements(figure).get("line_series"):
+        assert np.diff([x for x, _ in line.points]).min() > 60
+    results, _ = check_figure(figure, build_config({}), Measurements(figure))
+    assert "line-marker-gaps" not in {r.rule for r in results}
+
+
+def test_two_vertices_either_side_of_one_corner_are_one_bend():
+    from corpusaudit.measure.lines import _one_corner_each
+
+    # a centre line with one corner at x = 100 (slopes 0.3 then -0.2), cut off straight between
+    # x = 96 and 104 (1 px below the corner): a vertex either side of the rounding
+    xs = np.arange(201, dtype=float)
+    centre = np.where(xs < 100, 0.3 * xs, 30 - 0.2 * (xs - 100))
+    rounded = (xs > 96) & (xs < 104)
+    centre[rounded] = np.interp(xs[rounded], [96, 104], [28.8, 29.2])
+    vertices = np.array([[0, 0.0], [96, 28.8], [104, 29.2], [200, 10.0]])
+    merged = _one_corner_each(vertices, centre, tolerance=1.5)
+    assert len(merged) == 3 and merged[1][0] == pytest.approx(100, abs=1.0)
+    # two real bends 16 px apart whose middle segment climbs steeply: no corner explains them
+    steep = np.where(xs < 92, 0.3 * xs, np.where(xs < 108, 27.6 + 2.0 * (xs - 92), 59.6 - 0.2 * (xs - 108)))
+    vertices = np.array([[0, 0.0], [92, 27.6], [108, 59.6], [200, 41.2]])
+    assert len(_one_corner_each(vertices, steep, tolerance=1.5)) == 4

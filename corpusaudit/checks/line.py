@@ -161,8 +161,7 @@ def line_uneven_axis(ctx: CheckContext) -> Outcome:
     better="""A marker at each sample (or a visible break in the line) so readers see where the data are.""",
     limitations="""Needs the sample positions: vector vertices, or markers visible in pixels; for a raster
         line without markers, the places where it bends. Bends where another line crosses, too shallow or too
-        close together to place, leave the stretch around them unjudged; a raster line's largest step is
-        compared with its median step (a spurious bend makes a short one); a dashed raster line, or one whose
+        close together to place, leave the stretch around them unjudged; a dashed raster line, or one whose
         bends could be an even grid with some samples on straight stretches (any number on flat stretches; on
         sloping ones at most one for every two bends and two in a row), is left unmeasured; smoothed vector
         curves hide their samples.""",
@@ -198,13 +197,9 @@ def line_marker_gaps(ctx: CheckContext) -> Outcome:
         if ratio <= limit:
             unjudged = unjudged or bool(free.any())
             continue
-        if line.bends:
-            # a spurious bend (a join or a crossing read as two) makes a short step: on rasters
-            # the largest step is judged against the median one, and a short step alone decides nothing
-            ratio = certain.max() / np.median(certain)
-            if ratio <= limit or _even_with_hidden_samples(steps, np.diff([line.points[k][1] for k in first]), free):
-                unjudged = True
-                continue
+        if line.bends and _even_with_hidden_samples(steps, np.diff([line.points[k][1] for k in first]), free):
+            unjudged = True
+            continue
         return Outcome(findings=(Draft(message=f"samples {ratio:.1f}x unevenly spaced along x, drawn without markers",
                                        value=f"{ratio:.1f}", threshold=f"{limit:g}", region=line.bbox),))
     if unjudged:

@@ -227,9 +227,34 @@ def _markers_of(mask: np.ndarray) -> tuple[list[tuple[float, float]], float]:
 
 JOIN_WIDTHS = 3.0  # a line join spreads over about this many stroke widths (common practice, no source)
 BEND_TOLERANCE = 1.5  # pixels: a stroke's centre line wanders by up to about a pixel (anti-aliasing, JPEG)
-# The round join of a steep bend leaves two vertices on the centre line up to about four stroke
-# widths apart (seen on matplotlib renderings at 100 to 200 dpi; no published source).
+# The round join of a steep bend, or a line passing close by, leaves two vertices on the centre
+# line up to about five stroke widths, and for thin strokes up to about 15 pixels, apart (seen
+# on matplotlib renderings at 100 to 200 dpi; no published source).
 CLOSE_WIDTHS = 5.0
+CLOSE_MIN_PX = 16.0
+
+
+def _one_corner_each(vertices: np.ndarray, centre: np.ndarray, tolerance: float) -> np.ndarray:
+    """Vertices with each pair of neighbouring interior ones replaced by the corner where the
+    segments beyond them meet, when that one corner follows the centre line (its y in each
+    column, from column 0) within tolerance: a rounded or blurred join leaves two vertices
+    either side of its corner, however its width compares with the stroke's."""
+    merged = [tuple(v) for v in vertices]
+    k = 1
+    while k + 2 < len(merged):
+        (ax, ay), (bx, by), (cx, cy), (dx, dy) = merged[k - 1:k + 3]
+        before, after = (by - ay) / max(bx - ax, 1e-6), (dy - cy) / max(dx - cx, 1e-6)
+        if abs(before - after) > 1e-6:
+            x = (cy - ay + before * ax - after * cx) / (before - after)
+            if bx - 1.0 <= x <= cx + 1.0:
+                corner = (x, ay + before * (x - ax))
+                span = np.arange(int(np.ceil(ax)), int(np.floor(dx)) + 1)
+                fitted = np.interp(span, [ax, corner[0], dx], [ay, corner[1], dy])
+                if np.abs(fitted - centre[span]).max() <= tolerance:
+                    merged[k:k + 2] = [corner]
+                    continue
+        k += 1
+    return np.array(merged)
 
 
 def _bends(mask: np.ndarray, columns: np.ndarray, stroke: float,
@@ -245,7 +270,7 @@ def _bends(mask: np.ndarray, columns: np.ndarray, stroke: float,
     along x within two joins, where another series (others: its pixels) crosses or touches the
     stroke (the centre line is pulled aside), where columns of the stroke are missing
     (another colour on top, JPEG shifting a thin line's colour: the bridge cuts the corner), or
-    where two bends are so close that they may be one (CLOSE_WIDTHS)."""
+    where two bends are so close that they may be one (CLOSE_WIDTHS, CLOSE_MIN_PX)."""
     part = mask[:, columns.min():columns.max() + 1]
     # bridge the holes that grid-line removal and crossing lines leave (up to 6 pixels)
     part = cv2.morphologyEx(part, cv2.MORPH_CLOSE, np.ones((7, 1), np.uint8))
@@ -268,24 +293,26 @@ def _bends(mask: np.ndarray, columns: np.ndarray, stroke: float,
     loose[[0, -1]] = 2 * JOIN_WIDTHS * max(stroke, 1.0)
     groups = np.concatenate([[0], np.cumsum(steps > np.maximum(loose[:-1], loose[1:]))])
     ends = {0: vertices[0], groups[-1]: vertices[-1]}  # the line's ends stay where they are
-    bends = [(float(x + columns.min()), float(y)) for x, y in
-             (ends.get(g, vertices[groups == g].mean(axis=0)) for g in range(groups[-1] + 1))]
+    corners = _one_corner_each(np.array([ends.get(g, vertices[groups == g].mean(axis=0)) for g in range(groups[-1] + 1)]),
+                               line[:, 1], max(BEND_TOLERANCE, 0.75 * stroke))
+    bends = [(float(x + columns.min()), float(y)) for x, y in corners]
     placed = np.asarray(bends)
     slopes = np.diff(placed[:, 1]) / np.maximum(np.diff(placed[:, 0]), 1.0)
     shallow = BEND_TOLERANCE / np.maximum(np.abs(np.diff(slopes)), 1e-6) > 2 * JOIN_WIDTHS * max(stroke, 1.0)
     reach = int(np.ceil(JOIN_WIDTHS * max(stroke, 1.0)))
+    crossing = int(np.ceil(max(JOIN_WIDTHS * stroke, CLOSE_MIN_PX)))  # another line pulls vertices this far
     missing = np.ones(len(span), bool)
     missing[present] = False
     placeable = [True]
     for (x, y), too_shallow in zip(bends[1:-1], shallow):
         cx, cy = int(round(x)), int(round(y))
         placeable.append(not (too_shallow or missing[max(0, cx - columns.min() - reach):cx - columns.min() + reach + 1].any()
-                              or (others is not None and others[max(0, cy - reach):cy + reach + 1,
-                                                                max(0, cx - reach):cx + reach + 1].any())))
+                              or (others is not None and others[max(0, cy - crossing):cy + crossing + 1,
+                                                                max(0, cx - crossing):cx + crossing + 1].any())))
     placeable.append(True)
     # Two bends closer than CLOSE_WIDTHS may be one bend whose rounded join the centre line
     # leaves as two vertices: neither is placed.
-    close = np.diff([x for x, _ in bends]) < CLOSE_WIDTHS * max(stroke, 1.0)
+    close = np.diff([x for x, _ in bends]) < max(CLOSE_WIDTHS * stroke, CLOSE_MIN_PX)
     for k in np.flatnonzero(close):
         placeable[k] = placeable[k] and k == 0
         placeable[k + 1] = placeable[k + 1] and k + 1 == len(bends) - 1
