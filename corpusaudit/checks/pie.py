@@ -20,7 +20,9 @@ from corpusaudit.model import Draft, Option, Outcome
     better="""The four largest slices plus 'other', or a sorted bar chart of all nine values.""",
     limitations="""Counts wedges from the vector geometry or, on rasters, from colour runs going round the pie;
         neighbouring slices of one colour count as one unless a separator line divides them, and raster
-        slices narrower than about 2 pixels at the rim are not counted.""",
+        slices narrower than about 2 pixels at the rim are not counted. An exploded raster pie is
+        measured with its pieces pushed back together; where a piece is not recognised as a wedge
+        (thin wedges touching one another) it is left unmeasured.""",
 )
 def pie_slice_count(ctx: CheckContext) -> Outcome:
     pie = ctx.measure("pie")
@@ -102,10 +104,13 @@ def pie_order(ctx: CheckContext) -> Outcome:
     limitations="""Needs percentage labels on or beside the slices; labels that state counts are not summed.
         A slice whose label cannot be read or placed (text recognition misses, a label on the boundary
         between two slices, labels printed over one another that cannot be read apart) counts with its
-        drawn share, which widens the tolerance by half a point per such slice. On rasters, labels
-        printed over one another are read apart only where the chart puts its labels at one distance
-        along the slices' middles; light text on dark slices is not read; a pie with a surface in no
-        measured slice's colour (a slice the measurement missed, shading) is left unmeasured.""",
+        drawn share, which widens the tolerance by half a point per such slice. Two labels on one
+        measured slice count for neighbouring slices drawn in one colour only where each sits at the
+        chart's label distance on the middle of its own part. On rasters, labels printed over one
+        another are read apart only where the chart puts its labels at one distance along the slices'
+        middles, and a label whose glyphs lie under a neighbour's stays unread; light text on dark
+        slices is not read; a pie with a surface in no measured slice's colour (a slice the
+        measurement missed, shading) is left unmeasured.""",
 )
 def pie_total(ctx: CheckContext) -> Outcome:
     pie = ctx.measure("pie")

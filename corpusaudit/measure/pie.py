@@ -319,10 +319,10 @@ def _reassembled(rgb: np.ndarray, background: np.ndarray) -> np.ndarray:
         contours, _ = cv2.findContours(mask, cv2.RETR_EXTERNAL, cv2.CHAIN_APPROX_NONE)
         pieces.append((mask, *_sector_apex(max(contours, key=cv2.contourArea)[:, 0, :])))
     radius = pieces[0][2]
-    # A thin wedge's faint tip is lost to the ink threshold: its apex is put back at the
-    # pie's radius from its arc.
+    # A thin wedge's faint tip is lost to the ink threshold and the opening: its apex is put
+    # back at the pie's radius from its arc.
     pieces = [(mask, apex - (radius - reach) * direction, reach) for mask, apex, reach, direction in pieces
-              if abs(reach - radius) <= 0.08 * radius]
+              if abs(reach - radius) <= 0.08 * radius or _lost_tip(mask, apex, reach, direction, radius)]
     if len(pieces) < 2:
         raise MeasurementUnavailable("pieces are not sectors of one pie")
     canvas = np.empty_like(rgb)
@@ -336,14 +336,61 @@ def _reassembled(rgb: np.ndarray, background: np.ndarray) -> np.ndarray:
     return canvas
 
 
+LOST_TIP_PX = 12.0  # widest wedge tip the 5 px opening, the ink threshold and antialiasing together erase
+SECTOR_AREA = (0.7, 1.15)  # a piece's area over that of the sector it would be (edges lose a few per cent)
+
+
+def _lost_tip(mask: np.ndarray, apex: np.ndarray, reach: float, direction: np.ndarray, radius: float) -> bool:
+    """Whether a piece shorter than the pie's radius is a thin wedge that lost its tip: put
+    back at the radius from its arc, what is missing is no wider than LOST_TIP_PX, and the
+    piece fills the sector it then spans (a bar or a legend patch does not)."""
+    lost = radius - reach
+    if not 0.0 < lost <= 0.5 * radius:
+        return False
+    tip = apex - lost * direction
+    ys, xs = np.nonzero(mask)
+    points = np.column_stack([xs, ys]).astype(float)
+    distance = np.hypot(points[:, 0] - tip[0], points[:, 1] - tip[1])
+    if distance.max() > 1.03 * radius:
+        return False
+    far = points[distance > 0.5 * radius]
+    if len(far) < 2:
+        return False
+    _, span = _arc_cover(_angles(far, (float(tip[0]), float(tip[1]))))
+    half = np.radians(span) / 2.0
+    if 2.0 * lost * np.tan(half) > LOST_TIP_PX:
+        return False
+    area = half * (radius ** 2 - lost ** 2)  # the sector less its lost tip
+    return SECTOR_AREA[0] <= len(points) / max(area, 1.0) <= SECTOR_AREA[1]
+
+
 def _raster_pie(rgb: np.ndarray) -> Pie:
     try:
         return _round_raster_pie(rgb)
     except MeasurementUnavailable as round_failure:
         try:
-            return _round_raster_pie(_reassembled(rgb, background_rgb(rgb)))
+            background = background_rgb(rgb)
+            canvas = _reassembled(rgb, background)
+            reassembled = _round_raster_pie(canvas)
+            _require_no_missing_piece(canvas, background, reassembled)
+            return reassembled
         except MeasurementUnavailable:
             raise round_failure from None
+
+
+MISSING_PIECE_PX = 12.0  # background wider than this across the reassembled pie is a piece left out, not a separator
+
+
+def _require_no_missing_piece(canvas: np.ndarray, background: np.ndarray, geometry: Pie) -> None:
+    """Raise when the reassembled pie has a gap: a piece not recognised as a sector of the
+    pie (two thin wedges joined into one piece) was left out, and its share would be given
+    to its neighbours."""
+    radius = geometry.hole + 0.7 * (geometry.radius - geometry.hole)
+    steps = int(np.ceil(2 * np.pi * radius))  # one sample per pixel of the ring
+    empty = colour_distance(_ring(canvas, geometry.centre, radius, steps), background) < 30
+    widest = max((length for _, label, length in _runs(empty.astype(int)) if label == 1), default=0)
+    if widest > MISSING_PIECE_PX:
+        raise MeasurementUnavailable("a piece of the exploded pie could not be put back")
 
 
 def _round_raster_pie(rgb: np.ndarray) -> Pie:
@@ -520,7 +567,8 @@ def pie_percentages(figure: Figure, measurements) -> list[Percentage]:
     """Percentages printed on or beside the slices (within 1.5 radii of the centre).
 
     Vector: the stated text. Raster: the text lines found by colour (pixels that are neither
-    a slice colour nor background), redrawn black on white and read by OCR in one call.
+    a slice colour nor background), redrawn black on white and read by OCR in one page (lines
+    read at some scales only are read again on a page of their own).
     Two labels that touch ('7.9%15.5%') are both read; labels printed over one another are
     read again one by one where each is expected (see _reread_overlapping).
     """
@@ -561,15 +609,49 @@ def pie_label_total(figure: Figure, measurements) -> LabelTotal:
         raise MeasurementUnavailable("no percentage labels read")
     if len(labels) == len(geometry.slices):  # one per slice, wherever printed (a legend with values)
         return LabelTotal(total=sum(p.value for p in labels), labelled=len(labels), estimated=0, uncertainty=0.0)
-    # Otherwise each read label stands for the slice it sits on; two labels on one slice, or
-    # one on a boundary, cannot be placed and that slice counts by its share.
+    # Otherwise each read label stands for the slice it sits on; one on a boundary cannot be
+    # placed, nor can two on one slice unless they label neighbouring slices of one colour
+    # that the geometry sees as one; an unplaced slice counts by its share.
     owners = [_slice_at(geometry, label.bbox) for label in labels]
-    placed = {owner: label for owner, label in zip(owners, labels) if owner is not None and owners.count(owner) == 1}
+    fraction = _label_radius(geometry, labels)
+    placed = {}
+    for owner in set(owners) - {None}:
+        own = [label for o, label in zip(owners, labels) if o == owner]
+        if len(own) == 1 or (fraction is not None and _labels_divide(geometry, owner, own, fraction)):
+            placed[owner] = own
     if not placed:
         raise MeasurementUnavailable(f"{len(labels)} percentages read for {len(geometry.slices)} slices, none placed")
     missing = [piece for index, piece in enumerate(geometry.slices) if index not in placed]
-    return LabelTotal(total=sum(p.value for p in placed.values()) + 100.0 * sum(piece.share for piece in missing),
-                      labelled=len(placed), estimated=len(missing), uncertainty=SHARE_UNCERTAINTY * len(missing))
+    return LabelTotal(total=sum(p.value for own in placed.values() for p in own) + 100.0 * sum(p.share for p in missing),
+                      labelled=sum(len(own) for own in placed.values()), estimated=len(missing),
+                      uncertainty=SHARE_UNCERTAINTY * len(missing))
+
+
+def _labels_divide(geometry: Pie, index: int, labels: list[Percentage], fraction: float) -> bool:
+    """Whether several labels on one measured slice are those of neighbouring slices drawn
+    in one colour without a separator (a colour cycle shorter than the slices): each sits at
+    the chart's label distance on the middle of its own part, so that, going round from the
+    slice's start, every label's angle is halfway between the boundary before it and the
+    next, and the last part ends where the slice does. The chain of boundaries must close
+    within what the labels' positions allow: a quarter of a label's height each, as in
+    _label_radius, which a boundary (twice the label's angle less the previous boundary)
+    carries twice."""
+    piece, (cx, cy) = geometry.slices[index], geometry.centre
+    placed = []
+    for label in labels:
+        dx, dy = (label.bbox[0] + label.bbox[2]) / 2 - cx, -((label.bbox[1] + label.bbox[3]) / 2 - cy)
+        reach = float(np.hypot(dx, dy))
+        if abs(reach / geometry.radius - fraction) > LABEL_RADIUS_SPREAD:
+            return False
+        along = (np.degrees(np.arctan2(dy, dx)) - piece.start) % 360.0
+        placed.append((along, np.degrees(0.25 * (label.bbox[3] - label.bbox[1]) / reach)))
+    boundary, slack = 0.0, 0.0
+    for along, error in sorted(placed):
+        following = 2.0 * along - boundary
+        if not boundary < along < following:
+            return False
+        boundary, slack = following, slack + 2.0 * error  # each boundary carries twice its label's error
+    return bool(abs(boundary - piece.span) <= slack)
 
 
 def _near(geometry: Pie, box: BBox) -> bool:
@@ -598,6 +680,7 @@ def _slice_at(geometry: Pie, box: BBox) -> int | None:
     return None
 
 
+BLEND_REACH = 0.1  # of the radius
 DARK_SLICE = 100.0  # sRGB distance from black within which a slice colour may be that of the labels
 
 
@@ -606,9 +689,12 @@ def _text_ink(rgb: np.ndarray, geometry: Pie) -> tuple[np.ndarray, tuple[int, in
 
     Text is ink that is far from the background and, on a slice, neither a slice colour nor
     a blend of a slice colour with the background: so the separator lines between slices and
-    their antialiasing drop out. A dark slice colour, which text may share, is excluded only
-    on and within antialiasing reach of its own slice (and off the pie: legend swatches), so
-    that a thin black slice does not erase the black labels of the others. The pie's rim and
+    their antialiasing drop out. On the pie a slice's colour and its blends count only on and
+    near its own slice (within BLEND_REACH of the radius of its boundaries), so that the edges
+    of black glyphs on a light grey slice are not taken for a dark grey slice; a dark slice
+    colour, which text may share, only within antialiasing reach of its own slice, so that a
+    thin black slice does not erase the black labels of the others. Off the pie every slice
+    colour is excluded (legend swatches). The pie's rim and
     the hole's edge are removed. Text in the background colour (white labels on dark slices)
     is not read.
     """
@@ -624,14 +710,22 @@ def _text_ink(rgb: np.ndarray, geometry: Pie) -> tuple[np.ndarray, tuple[int, in
     on_slices = (distance < radius) & (distance > geometry.hole)
     angle = np.degrees(np.arctan2(-(yy - cy), xx - cx)) % 360.0
     margin = np.degrees(3.0 / np.maximum(distance, 1.0))  # antialiasing reaches ~3 px across a boundary
+    # A slice's blends with the background (its edges along separators) lie at most this far
+    # off its measured boundaries, allowing for wedges measured reassembled or pulled out a little.
+    blend_margin = np.degrees((3.0 + BLEND_REACH * radius) / np.maximum(distance, 1.0))
     nearest_slice = np.full(crop.shape[:2], np.inf, np.float32)
     blend = np.full(crop.shape[:2], np.inf, np.float32)
     for piece in geometry.slices:
         colour = np.asarray(piece.colour, np.float32)
         near, mixed = colour_distance(crop, colour), _distance_to_segment(crop, colour, background)
+        along = (angle - piece.start) % 360.0
+        outside = np.where(along < piece.span, 0.0, np.minimum(along - piece.span, 360.0 - along))  # degrees
+        # Inside other slices this slice's colour and its blends with the background are text
+        # antialiasing (the greys of black glyphs' edges on a light grey slice are a dark
+        # grey slice's colour and its blends with white).
+        away = on_slices & (outside > blend_margin)
+        near, mixed = np.where(away, np.inf, near), np.where(away, np.inf, mixed)
         if float(np.linalg.norm(colour)) < DARK_SLICE:
-            along = (angle - piece.start) % 360.0
-            outside = np.where(along < piece.span, 0.0, np.minimum(along - piece.span, 360.0 - along))  # degrees
             elsewhere = on_slices & (outside > margin)
             near, mixed = np.where(elsewhere, np.inf, near), np.where(elsewhere, np.inf, mixed)
         nearest_slice, blend = np.minimum(nearest_slice, near), np.minimum(blend, mixed)
@@ -713,12 +807,40 @@ def _raster_label_lines(rgb: np.ndarray, geometry: Pie) -> list[TextSpan]:
     grey = np.clip(255.0 * luma / _underlying_luma(rgb, geometry, (ox, oy), ink.shape), 0, 255)
     near_text = cv2.dilate(ink.astype(np.uint8), np.ones((3, 3), np.uint8)).astype(bool)
     grey = np.where(near_text, grey, 255).astype(np.uint8)
-    per_box = []
-    for (bx, by, bw, bh), words in zip(boxes, _ocr_boxes(grey, boxes)):
-        texts = tuple("".join(w.text for w in scale) for scale in words)
-        per_box.append(_agreed_percentages(texts, (ox + bx, oy + by, ox + bx + bw, oy + by + bh)))
+    per_box = _read_lines(grey, boxes, (ox, oy))
     _reread_overlapping(grey, geometry, (ox, oy), boxes, per_box)
     return _restore_decimal_points([line for lines in per_box for line in lines])
+
+
+@dataclass
+class _BoxReadings:
+    texts: list[tuple[str, ...]]  # per box, what each scale read
+    lines: list[list[TextSpan]]  # per box, the percentages all scales agree on
+
+
+def _read_boxes(grey: np.ndarray, boxes: list[tuple[int, int, int, int]], offset: tuple[int, int]) -> _BoxReadings:
+    ox, oy = offset
+    readings = _BoxReadings([], [])
+    for (bx, by, bw, bh), words in zip(boxes, _ocr_boxes(grey, boxes)):
+        texts = tuple("".join(w.text for w in scale) for scale in words)
+        readings.texts.append(texts)
+        readings.lines.append(_agreed_percentages(texts, (ox + bx, oy + by, ox + bx + bw, oy + by + bh)))
+    return readings
+
+
+def _read_lines(grey: np.ndarray, boxes: list[tuple[int, int, int, int]],
+                offset: tuple[int, int]) -> list[list[TextSpan]]:
+    """The percentages all three scales agree on in each box (its place in the figure: the
+    box moved by offset). A page that also holds fragments (separator and rim antialiasing)
+    misleads recognition and sets its scales by their height: lines that read as a
+    percentage at some scale but not at all three are read again on a page of their own."""
+    first = _read_boxes(grey, boxes, offset)
+    doubtful = [index for index, texts in enumerate(first.texts)
+                if not first.lines[index] and any(_PERCENTAGE.search(text) for text in texts)]
+    if doubtful and len(doubtful) < len(boxes):
+        for index, lines in zip(doubtful, _read_boxes(grey, [boxes[index] for index in doubtful], offset).lines):
+            first.lines[index] = lines
+    return first.lines
 
 
 def _ocr_boxes(grey: np.ndarray, boxes: list[tuple[int, int, int, int]]) -> list[list[list[TextSpan]]]:
@@ -749,7 +871,7 @@ def _ocr_boxes(grey: np.ndarray, boxes: list[tuple[int, int, int, int]]) -> list
 LABEL_RADIUS_SPREAD = 0.03  # of the radius: labels put at one distance from the centre agree this well
 
 
-def _label_radius(geometry: Pie, labels: list[TextSpan]) -> float | None:
+def _label_radius(geometry: Pie, labels: list[TextSpan] | list[Percentage]) -> float | None:
     """The distance from the centre (in radii) at which the chart prints its labels, when
     the labels read sit on their slices' middle directions at one distance (as matplotlib's
     autopct and most tools place them); None when fewer than three do or they disagree."""
