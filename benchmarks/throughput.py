@@ -39,9 +39,20 @@ WORK = REPO / "benchmarks" / "_work" / "throughput"
 def corpus_of(size: int) -> Path:
     folder = WORK / f"corpus-{size}"
     if not (folder / ".complete").exists():
-        build_corpus(folder, size, seed=size)
+        # built in a child: drawing the charts enlarges this process, which every audit's
+        # workers are forked from (their resident size would count it)
+        in_child(build_corpus, folder, size, seed=size)
         (folder / ".complete").write_text("ok")
     return folder
+
+
+def in_child(function, *args, **kwargs):
+    """function(*args, **kwargs) in a forked process of its own; its result."""
+    import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor
+
+    with ProcessPoolExecutor(max_workers=1, mp_context=multiprocessing.get_context("fork")) as pool:
+        return pool.submit(function, *args, **kwargs).result()
 
 
 def run_audit(folder: Path, jobs: int, tag: str) -> tuple[float, object, Path]:
@@ -119,11 +130,7 @@ def stage_split(folder: Path) -> dict[str, float]:
 def floor_in_child(folder: Path, out: Path, dpi: int) -> tuple[float, int]:
     """floor_seconds in a process of its own: what PyMuPDF caches while it renders (its store
     holds up to 256 MiB) must not enlarge the process the next audit forks its workers from."""
-    import multiprocessing
-    from concurrent.futures import ProcessPoolExecutor
-
-    with ProcessPoolExecutor(max_workers=1, mp_context=multiprocessing.get_context("fork")) as pool:
-        return pool.submit(floor_seconds, folder, out, dpi).result()
+    return in_child(floor_seconds, folder, out, dpi)
 
 
 def main() -> None:
