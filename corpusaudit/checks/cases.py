@@ -16,6 +16,8 @@ from typing import Any, Callable
 
 import numpy as np
 
+from corpusaudit.config import build_config
+
 STYLES = ("default", "default", "ggplot", "seaborn-v0_8-whitegrid", "bmh", "classic", "seaborn-v0_8-ticks",
           "tableau-colorblind10", "seaborn-v0_8-paper")
 _SYLLABLES = ("ka", "lo", "mi", "ren", "sa", "tor", "vel", "qu", "ni", "bo", "zan", "fe", "ul", "dra", "pim")
@@ -71,14 +73,6 @@ def _unsorted(rng: np.random.Generator, values: list[float]) -> list[float]:
             return order
 
 
-def _default(rule_id: str, key: str) -> float:
-    """A rule's default threshold, as the registry declares it."""
-    from corpusaudit.checks.registry import all_rules
-
-    rule = next(r for r in all_rules() if r.id == rule_id)
-    return next(option.default for option in rule.options if option.key == key)
-
-
 def _cyclic_sorted(values: list[float], tie: float = 1e-9) -> bool:
     """Sorted going round from some slice, either way; differences up to tie count as ties."""
     for start in range(len(values)):
@@ -107,7 +101,7 @@ def pie_case(rng: np.random.Generator, index: int) -> Case:
         while _cyclic_sorted(shares):
             shares = list(rng.permutation(shares))
         # out of order only by a near tie is in order for pie-order (its documented tie tolerance)
-        shuffled = not _cyclic_sorted(shares, _default("pie-order", "tolerance"))
+        shuffled = not _cyclic_sorted(shares, build_config({}).rules["pie-order"].options["tolerance"])
     labels = invented_names(rng, n)
     label_mode = rng.choice(["none", "true", "false"], p=[0.3, 0.4, 0.3])
     offset = float(rng.choice([-1, 1]) * rng.uniform(6, 15)) if label_mode == "false" else 0.0

@@ -222,8 +222,8 @@ def _even_with_hidden_samples(steps: np.ndarray, rises: np.ndarray, free: np.nda
     which some lie on a straight stretch (and so show no bend): every step a whole multiple of
     one sample step (the least-squares step for the multiples the smallest step gives), within
     the error of two bend positions, and no more hidden samples on sloping stretches than
-    HIDDEN_PER_SHOWN and HIDDEN_IN_A_ROW allow. Free steps (over a bend that could not be placed) may hold any
-    number of samples."""
+    HIDDEN_PER_SHOWN and HIDDEN_IN_A_ROW allow. Free steps (over a bend that could not be
+    placed) may hold any number of samples."""
     multiples = np.maximum(np.round(steps / steps.min()), 1)
     unit = float(multiples @ steps / (multiples @ multiples))
     if not np.all(np.abs(steps - multiples * unit) <= 2 * BEND_POSITION_ERROR + END_SLACK * unit):

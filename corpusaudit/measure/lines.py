@@ -296,8 +296,8 @@ def _bends(mask: np.ndarray, columns: np.ndarray, stroke: float,
     corners = _one_corner_each(np.array([ends.get(g, vertices[groups == g].mean(axis=0)) for g in range(groups[-1] + 1)]),
                                line[:, 1], max(BEND_TOLERANCE, 0.75 * stroke))
     bends = [(float(x + columns.min()), float(y)) for x, y in corners]
-    placed = np.asarray(bends)
-    slopes = np.diff(placed[:, 1]) / np.maximum(np.diff(placed[:, 0]), 1.0)
+    found = np.asarray(bends)
+    slopes = np.diff(found[:, 1]) / np.maximum(np.diff(found[:, 0]), 1.0)
     shallow = BEND_TOLERANCE / np.maximum(np.abs(np.diff(slopes)), 1e-6) > 2 * JOIN_WIDTHS * max(stroke, 1.0)
     reach = int(np.ceil(JOIN_WIDTHS * max(stroke, 1.0)))
     crossing = int(np.ceil(max(JOIN_WIDTHS * stroke, CLOSE_MIN_PX)))  # another line pulls vertices this far
@@ -310,8 +310,8 @@ def _bends(mask: np.ndarray, columns: np.ndarray, stroke: float,
                               or (others is not None and others[max(0, cy - crossing):cy + crossing + 1,
                                                                 max(0, cx - crossing):cx + crossing + 1].any())))
     placeable.append(True)
-    # Two bends closer than CLOSE_WIDTHS may be one bend whose rounded join the centre line
-    # leaves as two vertices: neither is placed.
+    # Two bends closer than CLOSE_WIDTHS (or CLOSE_MIN_PX) may be one bend whose rounded join
+    # the centre line leaves as two vertices: neither is placed.
     close = np.diff([x for x, _ in bends]) < max(CLOSE_WIDTHS * stroke, CLOSE_MIN_PX)
     for k in np.flatnonzero(close):
         placeable[k] = placeable[k] and k == 0

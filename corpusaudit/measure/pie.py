@@ -819,6 +819,8 @@ class _BoxReadings:
 
 
 def _read_boxes(grey: np.ndarray, boxes: list[tuple[int, int, int, int]], offset: tuple[int, int]) -> _BoxReadings:
+    """What each scale reads in each box, and the percentages they agree on (placed in the
+    figure: the box moved by offset)."""
     ox, oy = offset
     readings = _BoxReadings([], [])
     for (bx, by, bw, bh), words in zip(boxes, _ocr_boxes(grey, boxes)):
@@ -932,15 +934,15 @@ def _reread_overlapping(grey: np.ndarray, geometry: Pie, offset: tuple[int, int]
             for chars in WINDOW_CHARS:
                 x0, y0 = max(0, int(round(ex - chars * pitch / 2))), max(0, int(round(ey - height / 2)))
                 windows.append((x0, y0, min(cols, x0 + int(round(chars * pitch))) - x0, min(rows, y0 + height) - y0))
-    readings = iter(zip(windows, _ocr_boxes(grey, windows)))
+    read = _read_boxes(grey, windows, offset)
+    readings = iter(zip(read.texts, read.lines))
     for index, inside in crowded:
         found = []
         for _ in inside:
             agreed, seen = [], []
-            for (wx, wy, ww, wh), words in (next(readings) for _ in WINDOW_CHARS):
-                texts = tuple("".join(w.text for w in scale) for scale in words)
+            for texts, lines in (next(readings) for _ in WINDOW_CHARS):
                 seen.append({_value(m) for text in texts for m in _PERCENTAGE.finditer(text)})
-                agreed.append(_agreed_percentages(texts, (ox + wx, oy + wy, ox + wx + ww, oy + wy + wh)))
+                agreed.append(lines)
             narrowest = next((k for k, a in enumerate(agreed) if len(a) == 1), None)
             if narrowest is None:
                 continue
