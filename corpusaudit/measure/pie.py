@@ -705,19 +705,24 @@ def _text_ink(rgb: np.ndarray, geometry: Pie) -> tuple[np.ndarray, tuple[int, in
     x1, y1 = min(width, int(np.ceil(cx + reach))), min(height, int(np.ceil(cy + reach)))
     crop = rgb[y0:y1, x0:x1]
     background = background_rgb(rgb)
-    yy, xx = np.mgrid[y0:y1, x0:x1]
-    distance = np.hypot(xx - cx, yy - cy)
+    # Only pixels far from the background can be text: the rest is measured at those alone
+    # (about half the crop is background around a pie).
+    rows, cols = np.nonzero(colour_distance(crop, background) > 60)
+    pixels = np.ascontiguousarray(crop[rows, cols]).reshape(-1, 1, 3)
+    dy, dx = (rows + y0) - cy, (cols + x0) - cx
+    distance = np.hypot(dx, dy)
     on_slices = (distance < radius) & (distance > geometry.hole)
-    angle = np.degrees(np.arctan2(-(yy - cy), xx - cx)) % 360.0
+    angle = np.degrees(np.arctan2(-dy, dx)) % 360.0
     margin = np.degrees(3.0 / np.maximum(distance, 1.0))  # antialiasing reaches ~3 px across a boundary
     # A slice's blends with the background (its edges along separators) lie at most this far
     # off its measured boundaries, allowing for wedges measured reassembled or pulled out a little.
     blend_margin = np.degrees((3.0 + BLEND_REACH * radius) / np.maximum(distance, 1.0))
-    nearest_slice = np.full(crop.shape[:2], np.inf, np.float32)
-    blend = np.full(crop.shape[:2], np.inf, np.float32)
+    nearest_slice = np.full(rows.shape, np.inf, np.float32)
+    blend = np.full(rows.shape, np.inf, np.float32)
     for piece in geometry.slices:
         colour = np.asarray(piece.colour, np.float32)
-        near, mixed = colour_distance(crop, colour), _distance_to_segment(crop, colour, background)
+        near = colour_distance(pixels, colour).ravel()
+        mixed = _distance_to_segment(pixels, colour, background).ravel()
         along = (angle - piece.start) % 360.0
         outside = np.where(along < piece.span, 0.0, np.minimum(along - piece.span, 360.0 - along))  # degrees
         # Inside other slices this slice's colour and its blends with the background are text
@@ -729,17 +734,20 @@ def _text_ink(rgb: np.ndarray, geometry: Pie) -> tuple[np.ndarray, tuple[int, in
             elsewhere = on_slices & (outside > margin)
             near, mixed = np.where(elsewhere, np.inf, near), np.where(elsewhere, np.inf, mixed)
         nearest_slice, blend = np.minimum(nearest_slice, near), np.minimum(blend, mixed)
-    ink = (colour_distance(crop, background) > 60) & (nearest_slice > 40) & np.where(on_slices, blend > 25, True)
+    text = (nearest_slice > 40) & np.where(on_slices, blend > 25, True)
     edges = (np.abs(distance - radius) < 3) | ((geometry.hole > 0) & (np.abs(distance - geometry.hole) < 3))
     # Where three colours meet (two slices and the separator) blends are not on one segment:
     # along the boundaries only dark pixels (text crossing them) are kept.
-    boundaries = np.zeros(ink.shape, np.uint8)
+    boundaries = np.zeros(crop.shape[:2], np.uint8)
     for piece in geometry.slices:
         rad = np.radians(piece.start)
         rim = (int(round(cx + radius * np.cos(rad) - x0)), int(round(cy - radius * np.sin(rad) - y0)))
         cv2.line(boundaries, (int(round(cx - x0)), int(round(cy - y0))), rim, 1, 3)
-    light = crop.astype(np.float32) @ _LUMA > 80
-    return ink & ~edges & ~(boundaries.astype(bool) & light), (x0, y0)
+    light = pixels.reshape(-1, 3).astype(np.float32) @ _LUMA > 80
+    keep = text & ~edges & ~(boundaries[rows, cols].astype(bool) & light)
+    ink = np.zeros(crop.shape[:2], bool)
+    ink[rows[keep], cols[keep]] = True
+    return ink, (x0, y0)
 
 
 def _distance_to_segment(rgb: np.ndarray, a: np.ndarray, b: np.ndarray) -> np.ndarray:
@@ -751,15 +759,13 @@ def _distance_to_segment(rgb: np.ndarray, a: np.ndarray, b: np.ndarray) -> np.nd
     return np.sqrt(((pixels - t[..., None] * direction) ** 2).sum(axis=-1))
 
 
-def _underlying_luma(rgb: np.ndarray, geometry: Pie, offset: tuple[int, int], shape: tuple[int, ...]) -> np.ndarray:
-    """Luma of what lies under each pixel of a crop: its slice's colour on the pie (by
-    angle), the background elsewhere."""
-    ox, oy = offset
+def _underlying_luma(rgb: np.ndarray, geometry: Pie, xs: np.ndarray, ys: np.ndarray) -> np.ndarray:
+    """Luma of what lies under each pixel (xs, ys) of the figure: its slice's colour on the
+    pie (by angle), the background elsewhere."""
     cx, cy = geometry.centre
-    yy, xx = np.mgrid[oy:oy + shape[0], ox:ox + shape[1]]
-    distance = np.hypot(xx - cx, yy - cy)
-    angle = np.degrees(np.arctan2(-(yy - cy), xx - cx)) % 360.0
-    under = np.full(shape[:2], float(background_rgb(rgb) @ _LUMA), np.float32)
+    distance = np.hypot(xs - cx, ys - cy)
+    angle = np.degrees(np.arctan2(-(ys - cy), xs - cx)) % 360.0
+    under = np.full(xs.shape, float(background_rgb(rgb) @ _LUMA), np.float32)
     on_pie = (distance < geometry.radius) & (distance > geometry.hole)
     for piece in geometry.slices:
         inside = on_pie & ((angle - piece.start) % 360.0 < piece.span)
@@ -775,10 +781,12 @@ def _require_measured_colours(ink: np.ndarray, geometry: Pie, offset: tuple[int,
     slice the geometry missed, shading, a pattern): that slice's share and label would both
     be lost, and the labels read would not add up for a reason of the measurement's own."""
     ox, oy = offset
-    yy, xx = np.mgrid[oy:oy + ink.shape[0], ox:ox + ink.shape[1]]
-    distance = np.hypot(xx - geometry.centre[0], yy - geometry.centre[1])
+    rows, cols = np.nonzero(ink)
+    distance = np.hypot(cols + ox - geometry.centre[0], rows + oy - geometry.centre[1])
     side = max(5, int(round(UNMEASURED_SOLID * geometry.radius)))
-    on_pie = (ink & (distance < geometry.radius) & (distance > geometry.hole)).astype(np.uint8)
+    on_pie = np.zeros(ink.shape, np.uint8)
+    inside = (distance < geometry.radius) & (distance > geometry.hole)
+    on_pie[rows[inside], cols[inside]] = 1
     solid = cv2.morphologyEx(on_pie, cv2.MORPH_OPEN, np.ones((side, side), np.uint8))
     if int(solid.sum()) >= 2 * side * side:
         raise MeasurementUnavailable("part of the pie is in no measured slice's colour (a missed slice or shading)")
@@ -803,10 +811,10 @@ def _raster_label_lines(rgb: np.ndarray, geometry: Pie) -> list[TextSpan]:
     # Text keeps its antialiased levels, measured against what lies under it (a dark slice
     # would otherwise blacken the glyphs' edges and fill their holes); all else turns white.
     crop = rgb[oy:oy + ink.shape[0], ox:ox + ink.shape[1]]
-    luma = crop.astype(np.float32) @ _LUMA
-    grey = np.clip(255.0 * luma / _underlying_luma(rgb, geometry, (ox, oy), ink.shape), 0, 255)
-    near_text = cv2.dilate(ink.astype(np.uint8), np.ones((3, 3), np.uint8)).astype(bool)
-    grey = np.where(near_text, grey, 255).astype(np.uint8)
+    rows, cols = np.nonzero(cv2.dilate(ink.astype(np.uint8), np.ones((3, 3), np.uint8)))  # near text
+    luma = crop[rows, cols].astype(np.float32) @ _LUMA
+    grey = np.full(ink.shape, 255, np.uint8)
+    grey[rows, cols] = np.clip(255.0 * luma / _underlying_luma(rgb, geometry, cols + ox, rows + oy), 0, 255)
     per_box = _read_lines(grey, boxes, (ox, oy))
     _reread_overlapping(grey, geometry, (ox, oy), boxes, per_box)
     return _restore_decimal_points([line for lines in per_box for line in lines])
