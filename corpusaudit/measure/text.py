@@ -68,9 +68,9 @@ def ocr_available() -> bool:
 @functools.cache
 def _engine():
     """The process's recogniser, made on first use. Made before the pool forks its workers
-    (run._warm_up_before_forking), each worker starts with a private copy of it, copy-on-write:
-    loading the English model costs 0.3-0.7 s, once per worker otherwise (a new worker every
-    25 documents). A made recogniser holds no thread or open file that a fork could break."""
+    (run._warm_up_before_forking), each worker starts with a private copy of it, copy-on-write,
+    instead of loading the English model again (about 0.1 s; a new worker every 25 documents).
+    A made recogniser holds no thread or open file that a fork could break."""
     try:
         import tesserocr
     except ImportError:
