@@ -27,8 +27,6 @@ from dataclasses import dataclass, field
 
 import cv2
 import numpy as np
-from scipy.sparse import coo_matrix
-from scipy.sparse.csgraph import connected_components
 
 from corpusaudit.measure.colour import colour_bins
 from corpusaudit.model import BBox, RGB
@@ -144,13 +142,28 @@ def _components(contrast: np.ndarray, thin_contrast: np.ndarray, dark: bool, max
     which keeps bars, cells and wedges (wider than any stroke) out of the ink."""
     half_peak = cv2.dilate(contrast, np.ones((5, 5), np.uint8)) >> 1
     ink = (cv2.min(contrast, thin_contrast) >= MIN_CONTRAST) & (contrast >= half_peak)
+    # Labelling and distances run on the box around the ink (about half of a figure on
+    # average), with a margin past the deepest depth read below. Its corner stays on even
+    # coordinates so the labeller's 2x2 blocks, and so the label numbers, are the figure's.
+    height, width = ink.shape
+    bx, by, bw, bh = cv2.boundingRect(ink.view(np.uint8))
+    if bw == 0:
+        bx, by, bw, bh = 0, 0, width, height
+    margin = TOPHAT_PX // 2 + 3
+    X0, Y0 = max(0, bx - margin) & ~1, max(0, by - margin) & ~1
+    X1, Y1 = min(width, bx + bw + margin), min(height, by + bh + margin)
+    box_ink = ink[Y0:Y1, X0:X1].view(np.uint8)
     # Plain labelling and boxes from the ink pixels: connectedComponentsWithStats takes
     # several times longer on a figure than both together.
-    count, labels = cv2.connectedComponents(ink.view(np.uint8), connectivity=8)
-    points = cv2.findNonZero(ink.view(np.uint8))
+    count, box_labels = cv2.connectedComponents(box_ink, connectivity=8)
+    labels = np.zeros(ink.shape, dtype=box_labels.dtype)
+    labels[Y0:Y1, X0:X1] = box_labels
+    points = cv2.findNonZero(box_ink)
     points = np.zeros((0, 2), np.int64) if points is None else points.reshape(-1, 2).astype(np.int64)
     xs, ys = points[:, 0], points[:, 1]
-    member = labels[ys, xs]
+    member = box_labels[ys, xs]
+    box_xs, box_ys = xs, ys
+    xs, ys = xs + X0, ys + Y0
     area = np.bincount(member, minlength=count)
     x0 = np.full(count, sum(ink.shape), dtype=np.int64)  # the dtype of xs: ufunc.at is slow when it casts
     y0 = x0.copy()
@@ -163,8 +176,10 @@ def _components(contrast: np.ndarray, thin_contrast: np.ndarray, dark: bool, max
     w, h = x1 - x0, y1 - y0
     # Stroke widths are read on all of the contrast, top-hat or not: a filled marker that the
     # top-hat hollows to a ring is still thick there. Depth: chessboard distance of an ink
-    # pixel from the nearest pixel off the contrast (1 on an edge), up to half the top-hat.
-    depth = cv2.distanceTransform((contrast >= MIN_CONTRAST).view(np.uint8), cv2.DIST_C, 3)[ys, xs]
+    # pixel from the nearest pixel off the contrast (1 on an edge), up to half the top-hat;
+    # the margin holds every off-contrast pixel near enough to lower a depth that is read.
+    solid = (contrast[Y0:Y1, X0:X1] >= MIN_CONTRAST).view(np.uint8)
+    depth = cv2.distanceTransform(solid, cv2.DIST_C, 3)[box_ys, box_xs]
     widest = _per_label_max(member, depth, count, range(1, TOPHAT_PX // 2 + 2))
     strong = np.bincount(member[contrast[ys, xs] >= 2 * MIN_CONTRAST], minlength=count) > 0
     stroke = 2.0 * widest - 1.0
@@ -217,9 +232,26 @@ def _link(along0, along1, top, bottom, candidates: np.ndarray) -> np.ndarray:
 
 def _union_find(n: int, first: np.ndarray, second: np.ndarray) -> np.ndarray:
     """Group label of each of n nodes joined by the edges (first[k], second[k]); labels
-    are numbered in the order of each group's first node."""
-    edges = coo_matrix((np.ones(len(first), dtype=np.int8), (first, second)), shape=(n, n))
-    return connected_components(edges, directed=False)[1].astype(np.int64)
+    are numbered in the order of each group's first node. Min-label propagation with
+    pointer jumping: a few vector passes, far cheaper than building a sparse graph for
+    the few hundred nodes of a figure."""
+    root = np.arange(n, dtype=np.int64)
+    while len(first):
+        low = np.minimum(root[first], root[second])
+        changed = (root[first] != low) | (root[second] != low)
+        if not changed.any():
+            break
+        # Each node's root drops to the lowest root across its edges, then roots are
+        # followed to their own roots until every chain is flat.
+        np.minimum.at(root, root[first], low)
+        np.minimum.at(root, root[second], low)
+        while True:
+            jumped = root[root]
+            if np.array_equal(jumped, root):
+                break
+            root = jumped
+    # Each group's root is its first node, so sorted roots number the groups in that order.
+    return np.unique(root, return_inverse=True)[1].astype(np.int64).reshape(-1)
 
 
 def _shape(parts: _Components, k: int) -> np.ndarray:
@@ -230,7 +262,8 @@ def _shape(parts: _Components, k: int) -> np.ndarray:
         return parts.shapes[k]
     x0, y0, x1, y1 = parts.x0[k], parts.y0[k], parts.x1[k], parts.y1[k]
     own = parts.labels[y0:y1, x0:x1] == parts.ids[k]
-    patch = np.pad(np.where(own, parts.contrast[y0:y1, x0:x1], 0).astype(np.float32), 2)
+    patch = np.zeros((y1 - y0 + 4, x1 - x0 + 4), np.float32)  # a 2 px margin of zeros
+    patch[2:-2, 2:-2] = np.where(own, parts.contrast[y0:y1, x0:x1], 0)
     patch = cv2.resize(cv2.GaussianBlur(patch, (0, 0), 1.0), (SHAPE_PX, SHAPE_PX), interpolation=cv2.INTER_AREA)
     patch -= patch.mean()
     parts.shapes[k] = patch / max(float(np.linalg.norm(patch)), 1e-6)
@@ -303,12 +336,22 @@ def _merged_word(parts: _Components, index: int) -> bool:
     return runs >= max(3.0, 0.8 * (x1 - x0) / (y1 - y0))
 
 
+def _median(values: np.ndarray) -> float:
+    """np.median of a short 1-d float array, without its general-purpose overhead (lines
+    have a handful of glyphs): the middle value, or the mean of the middle two."""
+    ordered = np.sort(values)
+    middle = len(ordered) // 2
+    if len(ordered) % 2:
+        return float(ordered[middle])
+    return float((ordered[middle - 1] + ordered[middle]) / 2.0)
+
+
 def _heights(top: np.ndarray, bottom: np.ndarray, aspect: np.ndarray) -> tuple[float | None, float | None]:
     """(cap height, x-height) of a line from its glyphs' extents (frame coordinates)."""
     height = bottom - top
     tallest = float(height.max())
     tolerance = max(1.0, ALIGN_SHARE * tallest)
-    baseline = float(np.median(bottom))
+    baseline = _median(bottom)
     resting = np.abs(bottom - baseline) <= tolerance  # not descenders (g, p, y) nor raised marks
     if not resting.any():
         resting = np.ones(len(height), dtype=bool)
@@ -316,10 +359,10 @@ def _heights(top: np.ndarray, bottom: np.ndarray, aspect: np.ndarray) -> tuple[f
     upper = rest_heights >= rest_heights.max() - tolerance
     lower = rest_heights <= 0.85 * rest_heights.max()
     if lower.any():
-        return float(np.median(rest_heights[upper])), float(np.median(rest_heights[lower]))
-    if float(np.median(aspect[resting])) <= TALL_ASPECT:
-        return float(np.median(rest_heights)), None
-    return None, float(np.median(rest_heights))
+        return _median(rest_heights[upper]), _median(rest_heights[lower])
+    if _median(aspect[resting]) <= TALL_ASPECT:
+        return _median(rest_heights), None
+    return None, _median(rest_heights)
 
 
 def _modal(samples: np.ndarray) -> np.ndarray:
@@ -344,8 +387,10 @@ def _colours(rgb: np.ndarray, parts: _Components, members: np.ndarray, box: tupl
     if len(surround) < 8 or not ink_mask.any():
         return None
     background = _modal(surround)
-    alike = np.abs(patch.astype(np.int16) - np.round(background * 255).astype(np.int16)).max(axis=2) \
-        <= BACKGROUND_TOLERANCE
+    # Every channel within the tolerance of the background's: one inRange pass.
+    level = np.round(background * 255)
+    alike = cv2.inRange(patch, tuple((level - BACKGROUND_TOLERANCE).tolist()),
+                        tuple((level + BACKGROUND_TOLERANCE).tolist())) > 0
     inner = np.zeros(near_ink.shape, dtype=bool)
     inner[y0 - Y0:y1 - Y0, x0 - X0:x1 - X0] = True
     # Between letters and inside their counters lies the background itself; the inside
@@ -363,8 +408,23 @@ def _colours(rgb: np.ndarray, parts: _Components, members: np.ndarray, box: tupl
     if np.count_nonzero(solid) > 0.25 * np.count_nonzero(ink_mask):
         return None
     contrast = parts.contrast[Y0:Y1, X0:X1][ink_mask]
-    cores = patch[ink_mask][contrast >= 0.9 * np.quantile(contrast, 0.95)]
+    cores = patch[ink_mask][contrast >= 0.9 * _quantile_95(contrast)]
     return np.median(cores, axis=0) / 255.0, background
+
+
+def _quantile_95(values: np.ndarray) -> float:
+    """np.quantile(values, 0.95) of uint8 values: from their histogram when the two order
+    statistics it interpolates between are equal (nearly always: few grey levels, many
+    pixels), else np.quantile itself, so the result is the same to the bit."""
+    position = (len(values) - 1) * 0.95
+    low = int(np.floor(position))
+    high = min(low + 1, len(values) - 1)
+    below = np.cumsum(np.bincount(values, minlength=256))
+    # The k-th smallest value (0-based) is the first level with more than k values at or below it.
+    low_value, high_value = np.searchsorted(below, (low, high), side="right")
+    if low_value == high_value:
+        return float(low_value)
+    return float(np.quantile(values, 0.95))
 
 
 def find_text_lines(rgb: np.ndarray) -> list[GlyphLine]:
