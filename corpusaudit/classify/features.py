@@ -212,7 +212,8 @@ def _extract(rgb: np.ndarray) -> tuple[list[str], np.ndarray]:
     gy = cv2.Sobel(g, cv2.CV_32F, 0, 1, ksize=3)
     mag = np.hypot(gx, gy)
     strong = mag > 80
-    # orientations are only read on edges (mag > 30 below): the arctangent of every pixel was a tenth of the features' time
+    # Orientations are only read on edges (mag > 30 below): the arctangent of every pixel
+    # was a tenth of the features' time.
     ang = np.zeros_like(mag)
     edge = mag > 30
     ang[edge] = np.degrees(np.arctan2(gy[edge], gx[edge])) % 180.0

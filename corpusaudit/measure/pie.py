@@ -709,10 +709,10 @@ def _text_ink(rgb: np.ndarray, geometry: Pie) -> tuple[np.ndarray, tuple[int, in
     # (about half the crop is background around a pie).
     rows, cols = np.nonzero(colour_distance(crop, background) > 60)
     pixels = np.ascontiguousarray(crop[rows, cols]).reshape(-1, 1, 3)
-    dy, dx = (rows + y0) - cy, (cols + x0) - cx
-    distance = np.hypot(dx, dy)
+    xs, ys = cols + x0, rows + y0
+    distance = np.hypot(xs - cx, ys - cy)
     on_slices = (distance < radius) & (distance > geometry.hole)
-    angle = np.degrees(np.arctan2(-dy, dx)) % 360.0
+    angle = _angles(np.column_stack([xs, ys]), geometry.centre)
     margin = np.degrees(3.0 / np.maximum(distance, 1.0))  # antialiasing reaches ~3 px across a boundary
     # A slice's blends with the background (its edges along separators) lie at most this far
     # off its measured boundaries, allowing for wedges measured reassembled or pulled out a little.
@@ -764,7 +764,7 @@ def _underlying_luma(rgb: np.ndarray, geometry: Pie, xs: np.ndarray, ys: np.ndar
     pie (by angle), the background elsewhere."""
     cx, cy = geometry.centre
     distance = np.hypot(xs - cx, ys - cy)
-    angle = np.degrees(np.arctan2(-(ys - cy), xs - cx)) % 360.0
+    angle = _angles(np.column_stack([xs, ys]), geometry.centre)
     under = np.full(xs.shape, float(background_rgb(rgb) @ _LUMA), np.float32)
     on_pie = (distance < geometry.radius) & (distance > geometry.hole)
     for piece in geometry.slices:
