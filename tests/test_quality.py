@@ -115,3 +115,12 @@ def test_to_gray_uses_bt601_luma():
     pixels = skimage.data.coffee()
     pillow = np.asarray(Image.fromarray(pixels).convert("L"), dtype=np.float64)
     assert np.abs(qm.to_gray(pixels) - pillow).max() <= 1.0
+
+
+def test_colour_bins_of_the_histogram_match_the_top_four_bits():
+    # OpenCV's histogram path against the plain bit-shift binning (the path for non-uint8 input)
+    rng = np.random.default_rng(7)
+    image = rng.integers(0, 256, (61, 47, 3), dtype=np.uint8)
+    image[10:40, 5:30] = (200, 17, 64)  # one large flat colour, as in a chart
+    assert qm._top_colour_share(image) == qm._top_colour_share(image.astype(np.float64))
+    assert 0.26 < qm._top_colour_share(image) < 0.30  # 750 of 2,867 pixels plus the 15 next-fullest bins
