@@ -20,7 +20,7 @@ from corpusaudit.measure import measurement
 from corpusaudit.measure.legend import in_any
 from corpusaudit.measure.shapes import (
     axis_aligned_segment, background_rgb, bbox_area, colour_distance, colour_key, intersect, is_neutral, is_vector,
-    polyline_length, require_pixels,
+    nearest_colour, polyline_length, require_pixels,
 )
 from corpusaudit.model import BBox, Figure, MeasurementUnavailable
 
@@ -101,9 +101,9 @@ def _colour_classes(inner: np.ndarray) -> tuple[np.ndarray, list[np.ndarray]]:
     palette = [c for c in palette if float(np.linalg.norm(c - panel)) > 45]  # JPEG fringes lie close to the panel
     if not palette:
         return np.full(inner.shape[:2], -1), []
-    distances = np.stack([colour_distance(inner, panel)] + [colour_distance(inner, c) for c in palette])
-    nearest = distances.argmin(axis=0) - 1  # -1: the panel
-    nearest[distances.min(axis=0) > 25] = -1  # intermediate (anti-aliased) pixels belong to no colour
+    closest, distance = nearest_colour(inner, [panel] + palette)
+    nearest = closest - 1  # -1: the panel
+    nearest[distance > 25] = -1  # intermediate (anti-aliased) pixels belong to no colour
     _fringes_to_their_lines(inner, nearest, palette, panel)
     return nearest, palette
 
@@ -526,8 +526,8 @@ def _raster_areas(rgb: np.ndarray, plot: BBox) -> AreaLayers:
     palette = [colour for colour in palette if float(np.linalg.norm(colour - background)) > 20]
     if not palette:
         raise MeasurementUnavailable("no filled areas in the plot")
-    distances = np.stack([colour_distance(inner, colour) for colour in palette])
-    labels = np.where(distances.min(axis=0) < 30, distances.argmin(axis=0), -1)
+    closest, distance = nearest_colour(inner, palette)
+    labels = np.where(distance < 30, closest, -1)
     solid = [cv2.morphologyEx((labels == k).astype(np.uint8), cv2.MORPH_OPEN, np.ones((5, 5), np.uint8))
              for k in range(len(palette))]
     bands = [k for k, mask in enumerate(solid) if mask.sum() >= 0.02 * inner.shape[0] * inner.shape[1]]

@@ -125,6 +125,25 @@ def colour_distance(rgb: np.ndarray, colour: np.ndarray) -> np.ndarray:
     return np.sqrt(((rgb.astype(np.float32) - np.asarray(colour, np.float32)) ** 2).sum(axis=-1))
 
 
+def distinct_colours(rgb: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The distinct colours of an HxWx3 uint8 image (n x 1 x 3, an image of its own) and each
+    pixel's index into them (HxW). A chart holds a few hundred colours over hundreds of
+    thousands of pixels: per-colour work is then done once per colour, not once per pixel."""
+    red, green, blue = cv2.split(np.ascontiguousarray(rgb))
+    codes = (red.astype(np.int32) << 16) | (green.astype(np.int32) << 8) | blue
+    unique, index = np.unique(codes.ravel(), return_inverse=True)
+    colours = np.stack([unique >> 16, (unique >> 8) & 255, unique & 255], axis=1).astype(np.uint8)
+    return colours.reshape(-1, 1, 3), index.reshape(rgb.shape[:2])
+
+
+def nearest_colour(rgb: np.ndarray, colours: list[np.ndarray]) -> tuple[np.ndarray, np.ndarray]:
+    """Per pixel of an HxWx3 uint8 image: the index of the nearest of colours (the first on a
+    tie) and the distance to it, as colour_distance measures it (float32)."""
+    table, index = distinct_colours(rgb)
+    distances = np.stack([colour_distance(table, colour) for colour in colours])
+    return distances.argmin(axis=0).ravel()[index], distances.min(axis=0).ravel()[index]
+
+
 def ink_mask(rgb: np.ndarray, background: np.ndarray | None = None, threshold: float = 60.0) -> np.ndarray:
     """Pixels that differ clearly from the background colour."""
     if background is None:
