@@ -146,10 +146,12 @@ def _raster_perspective(rgb: np.ndarray, chart_type: str) -> Perspective:
             boxes.append(box)
     else:
         from corpusaudit.measure.colour import extract_palette
-        from corpusaudit.measure.shapes import colour_distance
+        from corpusaudit.measure.shapes import colour_distance, distinct_colours
 
-        for colour in extract_palette(rgb, max_colours=12, min_share=0.005):
-            mask = (colour_distance(rgb, np.asarray(colour.rgb) * 255.0) < 20).astype(np.uint8)
+        palette = extract_palette(rgb, max_colours=12, min_share=0.005)
+        table, index = distinct_colours(rgb) if palette else (None, None)
+        for colour in palette:
+            mask = (colour_distance(table, np.asarray(colour.rgb) * 255.0) < 20).astype(np.uint8).ravel()[index]
             mask = cv2.morphologyEx(mask, cv2.MORPH_OPEN, np.ones((3, 3), np.uint8))
             contours, _ = cv2.findContours(mask, cv2.RETR_EXTERNAL, cv2.CHAIN_APPROX_NONE)
             for contour in contours:
