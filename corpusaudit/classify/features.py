@@ -21,6 +21,8 @@ features do not depend on resolution. Groups (names prefixed accordingly):
 
 from __future__ import annotations
 
+from functools import lru_cache
+
 import cv2
 import numpy as np
 
@@ -46,19 +48,30 @@ def _background(img: np.ndarray) -> np.ndarray:
                              img[:, :2].reshape(-1, 3), img[:, -2:].reshape(-1, 3)])
     q = (border // 16).astype(np.int32)
     codes = q[:, 0] * 256 + q[:, 1] * 16 + q[:, 2]
-    mode = np.bincount(codes).argmax()
-    return border[codes == mode].mean(0)
+    chosen = codes == np.bincount(codes).argmax()
+    # integer sums, then one division: the values of border[chosen].mean(0), without its slow row gather
+    return (chosen @ border.astype(np.int64)) / np.count_nonzero(chosen)
+
+
+@lru_cache(maxsize=1)
+def _hog_bin_table() -> np.ndarray:
+    """Orientation bin of every gradient a [-1, 0, 1] difference of 8-bit pixels can take, indexed by
+    (gy + 255) * 511 + gx + 255: the per-pixel arithmetic of the thumbnail done once for all values."""
+    steps = np.arange(-255, 256, dtype=np.float32)
+    gx, gy = np.meshgrid(steps, steps)
+    bins = ((np.degrees(np.arctan2(gy, gx)) % 180.0) / (180.0 / HOG_BINS)).astype(np.int32) % HOG_BINS
+    return bins.astype(np.uint8).ravel()
 
 
 def _hog(thumb: np.ndarray) -> np.ndarray:
     """Histogram of oriented gradients: unsigned orientation, L2-Hys normalised 2x2-cell blocks."""
-    t = thumb.astype(np.float32)
-    gx = cv2.Sobel(t, cv2.CV_32F, 1, 0, ksize=1)
-    gy = cv2.Sobel(t, cv2.CV_32F, 0, 1, ksize=1)
-    mag = np.hypot(gx, gy)
-    bins = ((np.degrees(np.arctan2(gy, gx)) % 180.0) / (180.0 / HOG_BINS)).astype(np.int32) % HOG_BINS
-    n = t.shape[0] // HOG_CELL
-    cell = (np.arange(t.shape[0]) // HOG_CELL)
+    gx = cv2.Sobel(thumb, cv2.CV_32F, 1, 0, ksize=1)
+    gy = cv2.Sobel(thumb, cv2.CV_32F, 0, 1, ksize=1)
+    # integer gradients: the squares and their sum are exact in float32, so this is np.hypot's value
+    mag = np.sqrt(gx * gx + gy * gy)
+    bins = _hog_bin_table()[((gy + 255) * 511 + (gx + 255)).astype(np.intp)]
+    n = thumb.shape[0] // HOG_CELL
+    cell = (np.arange(thumb.shape[0]) // HOG_CELL)
     index = (cell[:, None] * n + cell[None, :]) * HOG_BINS + bins
     hist = np.bincount(index.ravel(), weights=mag.ravel(), minlength=n * n * HOG_BINS).reshape(n, n, HOG_BINS)
     blocks = np.concatenate([hist[:-1, :-1], hist[1:, :-1], hist[:-1, 1:], hist[1:, 1:]], axis=2)
@@ -87,12 +100,12 @@ def _runs(mask_1d: np.ndarray) -> tuple[int, float, float]:
     return int(starts.size), cv, gap_ratio
 
 
-def _profile_steps(mask: np.ndarray) -> list[float]:
-    """How the top edge of filled regions moves across columns: plateaus and jumps (bars, histograms)."""
-    cols = mask.any(0)
-    if cols.sum() < 4:
+def _profile_steps(filled: np.ndarray, first: np.ndarray) -> list[float]:
+    """How the top edge of filled regions moves across columns: plateaus and jumps (bars, histograms).
+    filled: which columns hold any region; first: each column's first filled row (argmax of the mask)."""
+    if filled.sum() < 4:
         return [0.0, 0.0, 0.0]
-    top = np.where(cols, mask.argmax(0), -1)[cols].astype(np.float32)
+    top = first[filled].astype(np.float32)
     d = np.abs(np.diff(top))
     flat = float((d == 0).mean())
     jumps = float((d > 2).mean())
@@ -106,10 +119,10 @@ MARK_NAMES = ["log_dots", "dot_share", "dot_cells", "dot_inner", "dot_area_cv", 
 DOT_SIDE = 16  # px at WORK_SIDE, after a 1 px dilation: a marker or a glyph, not a stroke across the plot
 
 
-def _marks(diff: np.ndarray, ink: np.ndarray) -> list[float]:
-    """Connected components of ink after removing long horizontal/vertical rules (axes, grids, frames)."""
-    h, w = ink.shape
-    ink8 = ink.astype(np.uint8)
+def _marks(ink8: np.ndarray, n_ink: int, n_halo: int) -> list[float]:
+    """Connected components of ink after removing long horizontal/vertical rules (axes, grids, frames).
+    ink8: the ink mask as 0/1 bytes; n_halo: pixels a little off the background but not ink."""
+    h, w = ink8.shape
     rule_len = max(12, min(h, w) // 6)
     rules = cv2.morphologyEx(ink8, cv2.MORPH_OPEN, np.ones((1, rule_len), np.uint8)) | \
         cv2.morphologyEx(ink8, cv2.MORPH_OPEN, np.ones((rule_len, 1), np.uint8))
@@ -117,7 +130,7 @@ def _marks(diff: np.ndarray, ink: np.ndarray) -> list[float]:
     # removing a rule also cuts every curve that crosses it: bridge gaps of up to 2 px again
     n, labels, stats, cents = cv2.connectedComponentsWithStats(cv2.dilate(marks, np.ones((3, 3), np.uint8)),
                                                                connectivity=8)
-    own_ink = np.bincount(labels[marks > 0], minlength=n)[1:]  # undilated pixels: rings stay hollow
+    own_ink = np.bincount(labels[marks.view(bool)], minlength=n)[1:]  # undilated pixels: rings stay hollow
     stats, cents = stats[1:], cents[1:]
     keep = stats[:, 4] >= 12  # a single dilated pixel (9 px) is noise or JPEG ringing
     stats, cents, own_ink = stats[keep], cents[keep], own_ink[keep]
@@ -150,29 +163,61 @@ def _marks(diff: np.ndarray, ink: np.ndarray) -> list[float]:
         vals[10] = extent[k] / max(h, w)
         vals[11] = area / (bw * bh)
         vals[12] = area / max(extent[k], 1)  # mean stroke width if the component is one stroke
-    vals[13] = float(np.log1p(((diff > 15) & (diff <= 40)).sum() / max(int(ink.sum()), 1)))
+    vals[13] = float(np.log1p(n_halo / max(n_ink, 1)))
     return [float(v) for v in vals]
 
 
 def extract(rgb: np.ndarray) -> np.ndarray:
     """Feature vector (float32, len(feature_names())) for an HxWx3 uint8 RGB image."""
-    return _extract(rgb)[1]
+    return _extract(rgb)
 
 
 def feature_names() -> list[str]:
-    return _extract(np.full((64, 64, 3), 255, np.uint8))[0]
+    names: list[str] = []
+    _extract(np.full((64, 64, 3), 255, np.uint8), names)
+    return names
 
 
-def _extract(rgb: np.ndarray) -> tuple[list[str], np.ndarray]:
+def _orientation_bins(deg: np.ndarray, width: int) -> np.ndarray:
+    """((deg % 180.0) // width).astype(np.int32) % (180 // width) for float32 angles in [-180, 180], without
+    numpy's float remainder and floor division (about 30 ns a pixel each). A negative angle gets the same
+    float32 sum the remainder computes; 180 itself lands in bin 0 either way; and a float32 in [0, 180]
+    divided by 10 or 30 never rounds up to the next integer, so truncating the quotient is its floor."""
+    half_turn = np.where(deg < 0, deg + np.float32(180.0), deg)
+    return (half_turn / np.float32(width)).astype(np.int32) % (180 // width)
+
+
+def _coordinates(mask8: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """x and y of a 0/1 byte mask's set pixels in row-major order (np.nonzero's order, faster)."""
+    points = cv2.findNonZero(mask8)
+    if points is None:
+        return np.zeros(0, np.int32), np.zeros(0, np.int32)
+    points = points.reshape(-1, 2)
+    return points[:, 0], points[:, 1]
+
+
+def _count_hist(image: np.ndarray, mask: np.ndarray, bins: int, upper: int) -> np.ndarray:
+    """Counts of a one-channel 8-bit image's values under a 0/1 mask in `bins` equal bins of [0, upper)."""
+    return cv2.calcHist([image], [0], mask, [bins], [0, upper]).ravel().astype(np.int64)
+
+
+def _colour_counts(img: np.ndarray, mask8: np.ndarray) -> np.ndarray:
+    """Pixels under a 0/1 mask per colour quantised to 8 levels a channel, at code
+    r // 32 * 64 + g // 32 * 8 + b // 32."""
+    return cv2.calcHist([img], [0, 1, 2], mask8, [8, 8, 8], [0, 256, 0, 256, 0, 256]).ravel().astype(np.int64)
+
+
+def _extract(rgb: np.ndarray, names: list[str] | None = None) -> np.ndarray:
+    """The feature vector; their names are appended to `names` when given (building them costs time)."""
     img = _working_image(rgb)
     h, w = img.shape[:2]
-    names: list[str] = []
+    size = h * w
     values: list[np.ndarray] = []
 
     def add(prefix: str, vals, labels=None):
         vals = np.atleast_1d(np.asarray(vals, np.float64))
-        labels = labels or [str(i) for i in range(vals.size)]
-        names.extend(f"{prefix}{lab}" for lab in labels)
+        if names is not None:
+            names.extend(f"{prefix}{lab}" for lab in labels or [str(i) for i in range(vals.size)])
         values.append(vals)
 
     add("shape_", [np.log(rgb.shape[1] / rgb.shape[0])], ["log_aspect"])
@@ -180,51 +225,55 @@ def _extract(rgb: np.ndarray) -> tuple[list[str], np.ndarray]:
     # colour
     bg = _background(img)
     # |img - bg| per channel by OpenCV (the same integers as numpy's int16 copy, several times faster)
-    per_channel = cv2.absdiff(img, tuple(float(v) for v in bg.astype(np.int16)) + (0.0,))
-    diff = np.maximum(np.maximum(per_channel[..., 0], per_channel[..., 1]), per_channel[..., 2]).astype(np.int16)
+    per_channel = cv2.split(cv2.absdiff(img, tuple(float(v) for v in bg.astype(np.int16)) + (0.0,)))
+    diff = cv2.max(cv2.max(per_channel[0], per_channel[1]), per_channel[2])
     ink = diff > 40
-    ink_share = ink.mean()
+    ink8 = ink.view(np.uint8)  # the same mask as 0/1 bytes for OpenCV
+    n_ink = np.count_nonzero(ink)
     hsv = cv2.cvtColor(img, cv2.COLOR_RGB2HSV)
-    sat = hsv[..., 1] / 255.0
-    val = hsv[..., 2] / 255.0
-    saturated = (sat > 0.25) & (val > 0.2) & ink
-    q = (img // 32).astype(np.int32)
-    codes = (q[..., 0] * 64 + q[..., 1] * 8 + q[..., 2])[ink]
-    counts = np.sort(np.bincount(codes, minlength=512))[::-1] if codes.size else np.zeros(512)
+    # saturation / 255 > 0.25 and value / 255 > 0.2, on the bytes
+    saturated8 = cv2.bitwise_and(cv2.inRange(hsv, (0, 64, 52), (255, 255, 255)), ink8)
+    n_saturated = cv2.countNonZero(saturated8)
+    counts = np.sort(_colour_counts(img, ink8))[::-1] if n_ink else np.zeros(512)
     share = _norm(counts)
     cum = np.cumsum(share)
-    n90 = float(np.searchsorted(cum, 0.9) + 1) if codes.size else 0.0
+    n90 = float(np.searchsorted(cum, 0.9) + 1) if n_ink else 0.0
     entropy = float(-(share[share > 0] * np.log2(share[share > 0])).sum())
     grey = cv2.cvtColor(img, cv2.COLOR_RGB2GRAY)
-    hue_hist = _norm(np.bincount((hsv[..., 0][saturated].astype(np.int32) * 6) // 180, minlength=6)[:6])
-    grey_hist = _norm(np.bincount(grey[ink] // 32, minlength=8))
-    add("colour_", [bg.mean() / 255, float(bg.mean() < 100), ink_share, saturated.mean(),
-                    saturated.sum() / max(ink.sum(), 1), np.log1p(n90), float((share > 0.01).sum()), entropy,
-                    sat[ink].mean() if ink.any() else 0.0, sat[ink].std() if ink.any() else 0.0],
+    # hues 0..179 in six bins of 30
+    hue_hist = _norm(_count_hist(cv2.extractChannel(hsv, 0), saturated8, 180, 180).reshape(6, 30).sum(1))
+    grey_hist = _norm(_count_hist(grey, ink8, 8, 256))
+    sat_of_ink = hsv[..., 1][ink] / 255.0
+    add("colour_", [bg.mean() / 255, float(bg.mean() < 100), n_ink / size, n_saturated / size,
+                    n_saturated / max(n_ink, 1), np.log1p(n90), float((share > 0.01).sum()), entropy,
+                    sat_of_ink.mean() if n_ink else 0.0, sat_of_ink.std() if n_ink else 0.0],
         ["bg_level", "bg_dark", "ink", "saturated", "saturated_of_ink", "log_n90", "n_over_1pct", "entropy",
          "sat_mean", "sat_std"])
     add("colour_hue", hue_hist)
     add("colour_grey", grey_hist)
 
-    # gradients
-    g = grey.astype(np.float32)
-    gx = cv2.Sobel(g, cv2.CV_32F, 1, 0, ksize=3)
-    gy = cv2.Sobel(g, cv2.CV_32F, 0, 1, ksize=3)
-    mag = np.hypot(gx, gy)
+    # gradients (integers: 3x3 Sobel of 8-bit pixels)
+    gx = cv2.Sobel(grey, cv2.CV_32F, 1, 0, ksize=3)
+    gy = cv2.Sobel(grey, cv2.CV_32F, 0, 1, ksize=3)
+    # |gx|, |gy| <= 1020: the squares and their sum are exact in float32, so this is np.hypot's value
+    mag = np.sqrt(gx * gx + gy * gy)
     strong = mag > 80
-    # Orientations are only read on edges (mag > 30 below): the arctangent of every pixel
-    # was a tenth of the features' time.
-    ang = np.zeros_like(mag)
+    # Orientations are only read on edges (mag > 30): the arctangent of every pixel was a tenth of the
+    # features' time. Pixels of the edge arrays keep the image's row-major order.
     edge = mag > 30
-    ang[edge] = np.degrees(np.arctan2(gy[edge], gx[edge])) % 180.0
-    orient = _norm(np.bincount((ang[strong] // 10).astype(np.int32) % 18, weights=mag[strong], minlength=18))
+    mag_e = mag[edge]
+    gx_e, gy_e = gx[edge], gy[edge]
+    deg_e = np.degrees(np.arctan2(gy_e, gx_e))
+    strong_e = mag_e > 80
+    n_strong = np.count_nonzero(strong_e)
+    orient = _norm(np.bincount(_orientation_bins(deg_e[strong_e], 10), weights=mag_e[strong_e], minlength=18))
     axis_aligned = orient[[0, 8, 9, 17]].sum()
-    medium = (mag > 10) & (mag <= 80)
-    lap = cv2.Laplacian(g, cv2.CV_32F)
-    flat = float((mag < 2).mean())
-    levels = float(np.count_nonzero(np.bincount(grey.ravel(), minlength=256))) / 256
+    n_medium = np.count_nonzero(mag > 10) - n_strong
+    lap = cv2.Laplacian(grey, cv2.CV_32F)
+    flat = np.count_nonzero(mag < 2) / size
+    levels = float(np.count_nonzero(cv2.calcHist([grey], [0], None, [256], [0, 256]))) / 256
     add("edge_orient", orient)
-    add("edge_", [strong.mean(), medium.mean(), axis_aligned, flat, levels, np.log1p(lap.var()),
+    add("edge_", [n_strong / size, n_medium / size, axis_aligned, flat, levels, np.log1p(lap.var()),
                   np.log1p(mag.mean())],
         ["strong", "medium", "axis_aligned", "flat", "grey_levels", "log_lap_var", "log_mag"])
 
@@ -233,19 +282,22 @@ def _extract(rgb: np.ndarray) -> tuple[list[str], np.ndarray]:
     add("hog", _hog(thumb))
 
     # layout grid
-    def grid(mask):
-        return cv2.resize(mask.astype(np.float32), (4, 4), interpolation=cv2.INTER_AREA).ravel()
-    add("grid_ink", grid(ink))
-    add("grid_sat", grid(saturated))
-    add("grid_edge", grid(strong))
+    def grid(mask8):
+        return cv2.resize(mask8.astype(np.float32), (4, 4), interpolation=cv2.INTER_AREA).ravel()
+    strong8 = strong.view(np.uint8)
+    add("grid_ink", grid(ink8))
+    add("grid_sat", grid(saturated8))
+    add("grid_edge", grid(strong8))
 
     # filled regions: ink minus thin strokes and text
-    thick = cv2.morphologyEx(ink.astype(np.uint8), cv2.MORPH_OPEN, np.ones((5, 5), np.uint8)).astype(bool)
-    n_lab, lab, stats, cents = cv2.connectedComponentsWithStats(thick.astype(np.uint8), connectivity=4)
-    stats, cents = stats[1:], cents[1:]
+    thick8 = cv2.morphologyEx(ink8, cv2.MORPH_OPEN, np.ones((5, 5), np.uint8))
+    thick = thick8.view(bool)
+    n_thick = cv2.countNonZero(thick8)
+    _, _, stats, _ = cv2.connectedComponentsWithStats(thick8, connectivity=4)
+    stats = stats[1:]
     areas = stats[:, 4].astype(np.float64)
     keep = areas >= 20
-    stats, cents, areas = stats[keep], cents[keep], areas[keep]
+    stats, areas = stats[keep], areas[keep]
     thick_area = max(areas.sum(), 1.0)
     if areas.size:
         box_area = (stats[:, 2] * stats[:, 3]).astype(np.float64)
@@ -268,11 +320,13 @@ def _extract(rgb: np.ndarray) -> tuple[list[str], np.ndarray]:
                 same_bottom, same_left, width_cv, height_cv, float((areas < 80).mean())]
     else:
         blob = [0.0] * 12
-    col_runs = _runs(thick.any(0))
-    row_runs = _runs(thick.any(1))
-    steps = _profile_steps(thick)
-    steps_t = _profile_steps(thick.T[:, ::-1])
-    add("blob_", blob + [thick.mean(), thick.sum() / max(ink.sum(), 1), np.log1p(col_runs[0]), col_runs[1],
+    filled_cols, filled_rows = thick.any(0), thick.any(1)
+    col_runs = _runs(filled_cols)
+    row_runs = _runs(filled_rows)
+    steps = _profile_steps(filled_cols, thick.argmax(0))
+    # the same profile seen from the right-hand side: the mask turned a quarter, rows become columns
+    steps_t = _profile_steps(filled_rows[::-1], thick.argmax(1)[::-1])
+    add("blob_", blob + [n_thick / size, n_thick / max(n_ink, 1), np.log1p(col_runs[0]), col_runs[1],
                          col_runs[2], np.log1p(row_runs[0]), row_runs[1], row_runs[2]] + steps + steps_t,
         ["log_count", "rect_share", "rect_mean", "largest_share", "largest_rect", "largest_ellipse",
          "log_rects", "same_bottom", "same_left", "width_cv", "height_cv", "small_share", "thick", "thick_of_ink",
@@ -280,39 +334,46 @@ def _extract(rgb: np.ndarray) -> tuple[list[str], np.ndarray]:
          "top_flat", "top_jumps", "top_small", "side_flat", "side_jumps", "side_small"])
 
     # boundaries between colours inside filled regions (heatmap cell grid vs map borders)
-    interior = cv2.erode(thick.astype(np.uint8), np.ones((3, 3), np.uint8)).astype(bool)
-    inner = (mag > 30) & interior
-    n_inner = int(inner.sum())
+    interior8 = cv2.erode(thick8, np.ones((3, 3), np.uint8))
+    interior = interior8.view(bool)
+    inner_e = interior[edge]  # of the edge pixels, those inside filled regions
+    n_inner = np.count_nonzero(inner_e)
     if n_inner > 20:
-        inner_orient = _norm(np.bincount((ang[inner] // 30).astype(np.int32) % 6, minlength=6))
-        vertical = inner & (np.abs(gx) > 2 * np.abs(gy))
-        horizontal = inner & (np.abs(gy) > 2 * np.abs(gx))
+        inner_orient = _norm(np.bincount(_orientation_bins(deg_e[inner_e], 30), minlength=6))
+        inner_x, inner_y = _coordinates(cv2.bitwise_and(edge.view(np.uint8), interior8))
+        abs_gx, abs_gy = np.abs(gx_e[inner_e]), np.abs(gy_e[inner_e])
+        vertical = abs_gx > 2 * abs_gy
+        horizontal = abs_gy > 2 * abs_gx
+        n_vertical, n_horizontal = np.count_nonzero(vertical), np.count_nonzero(horizontal)
         span_h = max(int(interior.any(1).sum()), 1)
         span_w = max(int(interior.any(0).sum()), 1)
-        col_sum, row_sum = vertical.sum(0), horizontal.sum(1)
+        col_sum = np.bincount(inner_x[vertical], minlength=w)
+        row_sum = np.bincount(inner_y[horizontal], minlength=h)
         # share of boundary pixels on columns/rows crossing much of the region: a cell grid
-        col_conc = col_sum[col_sum > 0.3 * span_h].sum() / max(vertical.sum(), 1)
-        row_conc = row_sum[row_sum > 0.3 * span_w].sum() / max(horizontal.sum(), 1)
-        diagonal = 1.0 - (vertical.sum() + horizontal.sum()) / n_inner
-        inner_vals = list(inner_orient) + [n_inner / max(interior.sum(), 1), col_conc, row_conc, diagonal]
+        col_conc = col_sum[col_sum > 0.3 * span_h].sum() / max(n_vertical, 1)
+        row_conc = row_sum[row_sum > 0.3 * span_w].sum() / max(n_horizontal, 1)
+        diagonal = 1.0 - (n_vertical + n_horizontal) / n_inner
+        inner_vals = list(inner_orient) + [n_inner / max(cv2.countNonZero(interior8), 1), col_conc, row_conc,
+                                           diagonal]
     else:
         inner_vals = [0.0] * 10
     add("inner_", inner_vals, [f"orient{i}" for i in range(6)] + ["density", "col_grid", "row_grid", "diagonal"])
 
     # radial structure around the centre of the filled regions (pies, donuts)
-    ys, xs = np.nonzero(thick)
-    if xs.size > 30:
+    if n_thick > 30:
+        xs, ys = _coordinates(thick8)
         cx, cy = xs.mean(), ys.mean()
-        radius = np.sqrt(xs.size / np.pi)
-        ey, ex = np.nonzero(strong)
+        radius = np.sqrt(n_thick / np.pi)
+        ex, ey = _coordinates(strong8)
         rx, ry = ex - cx, ey - cy
         rn = np.hypot(rx, ry) + 1e-6
-        cosang = np.abs(gx[ey, ex] * rx + gy[ey, ex] * ry) / (mag[ey, ex] * rn + 1e-6)
+        cosang = np.abs(gx_e[strong_e] * rx + gy_e[strong_e] * ry) / (mag_e[strong_e] * rn + 1e-6)
         near = rn < radius * 1.3
         radial_hist = _norm(np.bincount(np.minimum((cosang[near] * 4).astype(int), 3), minlength=4))
-        dist = np.hypot(xs - cx, ys - cy) / radius
+        dx, dy = xs - cx, ys - cy
+        dist = np.hypot(dx, dy) / radius
         dist_hist = _norm(np.bincount(np.minimum((dist * 3).astype(int), 5), minlength=6))
-        theta = np.arctan2(ys - cy, xs - cx)
+        theta = np.arctan2(dy, dx)
         sector = ((theta + np.pi) / (2 * np.pi) * 24).astype(int) % 24
         max_r = np.zeros(24)
         np.maximum.at(max_r, sector, dist)
@@ -349,8 +410,8 @@ def _extract(rgb: np.ndarray) -> tuple[list[str], np.ndarray]:
     add("hough_", hough, ["log_h", "log_v", "log_diag", "longest_h", "longest_v", "total"])
 
     # text-likeness: small ink components sharing rows
-    thin = ink & ~thick
-    n_small, _, s_stats, s_cent = cv2.connectedComponentsWithStats(thin.astype(np.uint8), connectivity=8)
+    thin8 = cv2.subtract(ink8, thick8)  # saturating: ink and not thick, as 0/1 bytes
+    _, _, s_stats, s_cent = cv2.connectedComponentsWithStats(thin8, connectivity=8)
     s_stats, s_cent = s_stats[1:], s_cent[1:]
     glyph = (s_stats[:, 3] >= 3) & (s_stats[:, 3] <= 20) & (s_stats[:, 2] <= 25) & (s_stats[:, 4] >= 3)
     gy_c = s_cent[glyph, 1] if glyph.any() else np.zeros(0)
@@ -360,13 +421,13 @@ def _extract(rgb: np.ndarray) -> tuple[list[str], np.ndarray]:
         n_text_rows = float((rows >= 4).sum())
     else:
         aligned, n_text_rows = 0.0, 0.0
-    row_profile = ink.mean(1) > 0.01
+    row_profile = cv2.reduce(ink8, 1, cv2.REDUCE_SUM, dtype=cv2.CV_32S).ravel() / w > 0.01
     alternations = _runs(row_profile)[0]
     add("text_", [np.log1p(glyph.sum()), glyph.sum() / max(len(s_stats), 1), aligned, np.log1p(n_text_rows),
-                  np.log1p(alternations), thin.sum() / max(ink.sum(), 1)],
+                  np.log1p(alternations), cv2.countNonZero(thin8) / max(n_ink, 1)],
         ["log_glyphs", "glyph_share", "aligned", "log_rows", "log_row_alternations", "thin_of_ink"])
 
-    add("mark_", _marks(diff, ink), MARK_NAMES)
+    add("mark_", _marks(ink8, n_ink, np.count_nonzero(diff > 15) - n_ink), MARK_NAMES)
 
     # symmetry
     t = thumb.astype(np.float32)
@@ -374,4 +435,4 @@ def _extract(rgb: np.ndarray) -> tuple[list[str], np.ndarray]:
     denom = float((t * t).sum()) + 1e-6
     add("sym_", [(t * t[:, ::-1]).sum() / denom, (t * t[::-1]).sum() / denom], ["lr", "ud"])
 
-    return names, np.concatenate(values).astype(np.float32)
+    return np.concatenate(values).astype(np.float32)
