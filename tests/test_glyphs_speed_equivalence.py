@@ -1,7 +1,8 @@
 """The cheaper steps of measure/glyphs.py give exactly what the general routines they stand in
 for give: the grouping of linked glyphs (scipy's connected components), the median and 95th
-percentile (numpy's), and the labelling and stroke depths read on the box around the ink
-(the same read on the whole figure)."""
+percentile (numpy's), the labelling and stroke depths read on the box around the ink (the
+same read on the whole figure), and the colours of a line read from histograms of its patch
+(its pixels gathered and reduced by numpy)."""
 
 from __future__ import annotations
 
@@ -12,6 +13,7 @@ from scipy.sparse import coo_matrix
 from scipy.sparse.csgraph import connected_components
 
 from corpusaudit.measure import glyphs
+from corpusaudit.measure.colour import colour_bins
 
 
 @pytest.mark.parametrize("seed", range(40))
@@ -64,3 +66,32 @@ def test_components_on_the_ink_box_match_the_whole_figure(seed):
     for k, label in enumerate(parts.ids):
         widest = min(float(depth[labels == label].max()), glyphs.TOPHAT_PX // 2 + 1)
         assert parts.stroke[k] == 2.0 * widest - 1.0
+
+
+def _patch_and_mask(rng):
+    """A patch of a few colours (so that bins and exact colours tie) with some noise, on a
+    strided view as the figure's patches are, and a random mask."""
+    height, width = int(rng.integers(3, 30)), int(rng.integers(3, 40))
+    palette = rng.integers(0, 256, (int(rng.integers(1, 5)), 3))
+    image = palette[rng.integers(0, len(palette), (height + 4, width + 6))]
+    image = np.clip(image + rng.integers(-9, 10, image.shape) * (rng.random(image.shape[:2]) < 0.3)[..., None], 0, 255)
+    patch = image.astype(np.uint8)[2:-2, 3:-3]
+    mask = rng.random((height, width)) < rng.uniform(0.2, 1.0)
+    mask.flat[int(rng.integers(0, mask.size))] = True
+    return patch, mask
+
+
+@pytest.mark.parametrize("seed", range(60))
+def test_modal_bin_mean_and_medians_match_numpy(seed):
+    """The histogram readings of a masked patch against gathering its pixels and using
+    colour_bins, bincount's argmax, the mean and np.median."""
+    rng = np.random.default_rng(seed)
+    patch, mask = _patch_and_mask(rng)
+    samples = patch[mask]
+    bins = colour_bins(samples)
+    counts = np.bincount(bins)
+    mode = int(counts.argmax())
+    low, count = glyphs.modal_bin(patch, mask.view(np.uint8))
+    assert low == ((mode >> 10) * 8, ((mode >> 5) & 31) * 8, (mode & 31) * 8) and count == counts[mode]
+    assert np.array_equal(glyphs._modal(patch, mask.view(np.uint8)), samples[bins == mode].mean(axis=0) / 255.0)
+    assert np.array_equal(glyphs._channel_medians(samples), np.median(samples, axis=0))

@@ -384,33 +384,47 @@ def text_lines(figure: Figure, measurements) -> list[TextLine]:
     return lines
 
 
-def _box_pixels(pixels: np.ndarray, box: BBox, margin: int) -> np.ndarray:
+def _box_patch(pixels: np.ndarray, box: BBox, margin: int) -> np.ndarray:
     h, w = pixels.shape[:2]
     x0, y0 = max(0, int(np.floor(box[0])) - margin), max(0, int(np.floor(box[1])) - margin)
     x1, y1 = min(w, int(np.ceil(box[2])) + margin), min(h, int(np.ceil(box[3])) + margin)
-    return pixels[y0:y1, x0:x1].reshape(-1, 3)
+    return pixels[y0:y1, x0:x1]
 
 
-def _modal_colour(samples: np.ndarray) -> np.ndarray:
-    """The most common exact colour inside the most common 5-bit bin, 0..1: the bin makes it
-    robust to JPEG noise, the exact mode keeps anti-aliased edge pixels from tinting it."""
-    bins = colour.colour_bins(samples)
-    members = samples[bins == np.bincount(bins).argmax()].astype(np.int32)
-    codes = (members[:, 0] << 16) | (members[:, 1] << 8) | members[:, 2]
-    values, counts = np.unique(codes, return_counts=True)
-    code = int(values[counts.argmax()])
-    return np.array([(code >> 16) & 255, (code >> 8) & 255, code & 255]) / 255.0
+def _modal_colour(patch: np.ndarray, mask: np.ndarray | None) -> np.ndarray:
+    """The most common exact colour inside the most common 5-bit bin of the masked pixels of a
+    patch (all when None), 0..1: the bin makes it robust to JPEG noise, the exact mode keeps
+    anti-aliased edge pixels from tinting it. Both are read from histograms; a histogram of
+    the bin's levels counts its colours in their sorted order, so ties go to the lowest."""
+    low, _ = glyphs.modal_bin(patch, mask)
+    span = glyphs.BIN_LEVELS
+    exact = cv2.calcHist([patch], [0, 1, 2], mask, [span] * 3, [level for v in low for level in (v, v + span)])
+    red, rest = divmod(int(np.argmax(exact)), span * span)
+    green, blue = divmod(rest, span)
+    return np.array([low[0] + red, low[1] + green, low[2] + blue]) / 255.0
+
+
+# Each 8-bit level as a 0..1 value, as pixels are compared with a stated colour.
+_LEVELS = np.arange(256) / 255.0
+INK_DISTANCE = 0.12  # a pixel farther than this from the stated text colour on some channel is not ink
 
 
 def _vector_contrast(line: TextLine, pixels: np.ndarray) -> TextContrast | None:
     """Stated text colour against the modal rendered colour around it that is not the ink."""
-    samples = _box_pixels(pixels, line.bbox, margin=2)
-    if len(samples) < 4:
+    patch = _box_patch(pixels, line.bbox, margin=2)
+    size = patch.shape[0] * patch.shape[1]
+    if size < 4:
         return None
     ink = np.asarray(line.colour)
-    away = np.abs(samples / 255.0 - ink).max(axis=1) > 0.12
+    # Distance from the ink falls and then rises along the levels of a channel, so the levels
+    # near it form one range per channel: one inRange pass over the box instead of a float
+    # copy of its pixels. A channel with no level near the ink gets an empty range.
+    near_levels = [np.flatnonzero(~(np.abs(_LEVELS - value) > INK_DISTANCE)) for value in ink]
+    low = tuple(int(levels[0]) if len(levels) else 1 for levels in near_levels)
+    high = tuple(int(levels[-1]) if len(levels) else 0 for levels in near_levels)
+    away = cv2.inRange(patch, low, high) == 0
     # Text drawn in the background colour leaves nothing else in its box: ratio 1, rightly.
-    background = _modal_colour(samples[away] if away.sum() >= 0.2 * len(samples) else samples)
+    background = _modal_colour(patch, away.view(np.uint8) if np.count_nonzero(away) >= 0.2 * size else None)
     ratio = float(colour.contrast_ratio(ink, background))
     return TextContrast(line.text, line.bbox, ratio, tuple(float(v) for v in ink),
                         tuple(float(v) for v in background), line.size_pt, line.bold)

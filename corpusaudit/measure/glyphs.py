@@ -28,7 +28,6 @@ from dataclasses import dataclass, field
 import cv2
 import numpy as np
 
-from corpusaudit.measure.colour import colour_bins
 from corpusaudit.model import BBox, RGB
 
 MIN_CONTRAST = 14  # grey levels from the local background: JPEG noise on flat areas stays below
@@ -365,10 +364,37 @@ def _heights(top: np.ndarray, bottom: np.ndarray, aspect: np.ndarray) -> tuple[f
     return None, _median(rest_heights)
 
 
-def _modal(samples: np.ndarray) -> np.ndarray:
-    """The mean colour of the most common 8-level bin: robust to JPEG noise and to blends."""
-    bins = colour_bins(samples)
-    return samples[bins == np.bincount(bins).argmax()].mean(axis=0) / 255.0
+BIN_LEVELS = 8  # levels per channel in a bin of colour.colour_bins (the top 5 bits of each channel)
+
+
+def modal_bin(patch: np.ndarray, mask: np.ndarray | None) -> tuple[tuple[int, int, int], int]:
+    """The most common bin of colour.colour_bins among the pixels of an HxWx3 uint8 patch
+    that the uint8 mask selects (all when None): its lowest level per channel, and its pixel
+    count. A histogram over the patch, without gathering the pixels first; ties go to the
+    lowest bin, as the argmax of a bincount of the bins does."""
+    hist = cv2.calcHist([patch], [0, 1, 2], mask, [256 // BIN_LEVELS] * 3, [0, 256] * 3)
+    index = int(np.argmax(hist))
+    side = 256 // BIN_LEVELS
+    red, rest = divmod(index, side * side)
+    green, blue = divmod(rest, side)
+    return (red * BIN_LEVELS, green * BIN_LEVELS, blue * BIN_LEVELS), int(hist.flat[index])
+
+
+def _modal(patch: np.ndarray, mask: np.ndarray) -> np.ndarray:
+    """The mean colour of the most common 8-level bin of the masked pixels: robust to JPEG
+    noise and to blends. The sums are exact integers, so the mean is numpy's to the bit."""
+    low, count = modal_bin(patch, mask)
+    members = cv2.inRange(patch, low, tuple(v + BIN_LEVELS - 1 for v in low)) & mask
+    sums = cv2.sumElems(cv2.bitwise_and(patch, patch, mask=members))[:3]
+    return np.array(sums) / count / 255.0
+
+
+def _channel_medians(pixels: np.ndarray) -> np.ndarray:
+    """np.median over axis 0 of Nx3 uint8 pixels, without its general-purpose overhead: each
+    channel sorted, the mean of its two middle values (the one middle value when N is odd)."""
+    ordered = np.sort(pixels, axis=0)
+    count = len(ordered)
+    return (ordered[(count - 1) // 2].astype(np.float64) + ordered[count // 2]) / 2.0
 
 
 def _colours(rgb: np.ndarray, parts: _Components, members: np.ndarray, box: tuple[int, int, int, int],
@@ -381,35 +407,39 @@ def _colours(rgb: np.ndarray, parts: _Components, members: np.ndarray, box: tupl
     X0, Y0, X1, Y1 = max(0, x0 - pad), max(0, y0 - pad), min(width, x1 + pad), min(height, y1 + pad)
     labels = parts.labels[Y0:Y1, X0:X1]
     ink_mask = parts.member_mask(labels, members)
-    near_ink = cv2.dilate((labels > 0).view(np.uint8), np.ones((3, 3), np.uint8)).astype(bool)
+    off_ink = cv2.dilate((labels > 0).view(np.uint8), np.ones((3, 3), np.uint8)) == 0
     patch = rgb[Y0:Y1, X0:X1]
-    surround = patch[~near_ink]
-    if len(surround) < 8 or not ink_mask.any():
+    surround = np.count_nonzero(off_ink)
+    if surround < 8 or not ink_mask.any():
         return None
-    background = _modal(surround)
+    background = _modal(patch, off_ink.view(np.uint8))
     # Every channel within the tolerance of the background's: one inRange pass.
     level = np.round(background * 255)
     alike = cv2.inRange(patch, tuple((level - BACKGROUND_TOLERANCE).tolist()),
                         tuple((level + BACKGROUND_TOLERANCE).tolist())) > 0
-    inner = np.zeros(near_ink.shape, dtype=bool)
-    inner[y0 - Y0:y1 - Y0, x0 - X0:x1 - X0] = True
+    # The line's box within the patch: the regions below are counted on it by slicing.
+    inner = (slice(y0 - Y0, y1 - Y0), slice(x0 - X0, x1 - X0))
     # Between letters and inside their counters lies the background itself; the inside
     # of a ring of markers or the cells under marks is some other colour.
     # Around text lies its background, bar a neighbouring line or an axis; a cluster of
     # markers that passes for a word has more markers all round it (other ink counts here).
-    near_own = cv2.dilate(ink_mask.view(np.uint8), np.ones((3, 3), np.uint8)).astype(bool)
-    for region, share in ((~near_ink, UNIFORM_SHARE), (inner & ~near_ink, INNER_UNIFORM_SHARE),
-                          (~inner & ~near_own, CLEAR_SHARE)):
-        if np.count_nonzero(alike & region) < share * np.count_nonzero(region):
+    off_own = cv2.dilate(ink_mask.view(np.uint8), np.ones((3, 3), np.uint8)) == 0
+    alike_off_ink, alike_off_own = alike & off_ink, alike & off_own
+    for alike_count, count, share in (
+            (np.count_nonzero(alike_off_ink), surround, UNIFORM_SHARE),
+            (np.count_nonzero(alike_off_ink[inner]), np.count_nonzero(off_ink[inner]), INNER_UNIFORM_SHARE),
+            (np.count_nonzero(alike_off_own) - np.count_nonzero(alike_off_own[inner]),
+             np.count_nonzero(off_own) - np.count_nonzero(off_own[inner]), CLEAR_SHARE)):
+        if alike_count < share * count:
             return None
     # Strokes are thin, so all of a glyph's contrast is in its thin ink; marks wider than the
     # top-hat (filled markers hollowed to rings, cell fills) leave contrast off the thin ink.
-    solid = inner & ~near_ink & (parts.contrast[Y0:Y1, X0:X1] >= MIN_CONTRAST)
+    contrast_patch = parts.contrast[Y0:Y1, X0:X1]
+    solid = off_ink[inner] & (contrast_patch[inner] >= MIN_CONTRAST)
     if np.count_nonzero(solid) > 0.25 * np.count_nonzero(ink_mask):
         return None
-    contrast = parts.contrast[Y0:Y1, X0:X1][ink_mask]
-    cores = patch[ink_mask][contrast >= 0.9 * _quantile_95(contrast)]
-    return np.median(cores, axis=0) / 255.0, background
+    cores = ink_mask & (contrast_patch >= 0.9 * _quantile_95(contrast_patch[ink_mask]))
+    return _channel_medians(patch[cores]) / 255.0, background
 
 
 def _quantile_95(values: np.ndarray) -> float:

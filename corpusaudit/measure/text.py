@@ -28,6 +28,7 @@ TESSDATA_GLOBS = ("/usr/share/tesseract-ocr/*/tessdata", "/usr/share/tesseract-o
                   "/usr/local/share/tessdata", "/opt/homebrew/share/tessdata")
 _NUMBER = re.compile(r"^[(\[]?([-+]?)(\d{1,3}(?:[,\u202f\u2009 ]\d{3})+|\d*\.?\d+)(?:[eE]([-+]?\d+))?\s*(%|[kKMB])?[)\]]?$")
 _SCALE = {"k": 1e3, "K": 1e3, "M": 1e6, "B": 1e9, "%": 1.0, None: 1.0}
+BMP_RESOLUTION = 96  # dpi: Pillow's default for BMP, which tesserocr made of PIL images
 _MINUS = str.maketrans({"\u2212": "-", "\u2013": "-", "\u2012": "-", "$": "", "€": "", "£": ""})
 
 
@@ -96,7 +97,6 @@ def _recognise(rgb: np.ndarray, region: BBox, psm: int, whitelist: str,
     engine = _engine()
     import cv2
     import tesserocr
-    from PIL import Image
 
     h, w = rgb.shape[:2]
     x0, y0 = max(0, int(region[0])), max(0, int(region[1]))
@@ -110,7 +110,12 @@ def _recognise(rgb: np.ndarray, region: BBox, psm: int, whitelist: str,
     grey = cv2.copyMakeBorder(grey, 10, 10, 10, 10, cv2.BORDER_REPLICATE)
     engine.SetPageSegMode(psm)
     engine.SetVariable("tessedit_char_whitelist", whitelist)
-    engine.SetImage(Image.fromarray(grey))
+    # The grey bytes as they are: handing tesserocr a PIL image costs a BMP encoding and
+    # decoding per strip. BMP_RESOLUTION is what that BMP's header stated, and tesseract
+    # reads the resolution, so it is stated here too. The bytes are held until recognised.
+    image_bytes = grey.tobytes()
+    engine.SetImageBytes(image_bytes, grey.shape[1], grey.shape[0], 1, grey.shape[1])
+    engine.SetSourceResolution(BMP_RESOLUTION)
     engine.Recognize()
     words = []
     level = tesserocr.RIL.WORD
