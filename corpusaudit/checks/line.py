@@ -44,7 +44,7 @@ def line_series_count(ctx: CheckContext) -> Outcome:
     id="line-on-categories",
     applies_to=("line",),
     severity="warning",
-    requires=("axes",),
+    requires=("x_axis",),
     options=(Option("min_labels", 3, "category labels needed before judging", minimum=2),),
     rationale="""A line implies values between its points and a sequence; joining unordered
         categories (countries, products) invents both.""",
@@ -58,7 +58,7 @@ def line_series_count(ctx: CheckContext) -> Outcome:
         recognition returns as fragments, duplicates, or partly as numbers or months leave it unmeasured.""",
 )
 def line_on_categories(ctx: CheckContext) -> Outcome:
-    axis = ctx.measure("axes").x
+    axis = ctx.measure("x_axis")
     labels = axis.labels
     if axis.kind != "categorical" or len(labels) < ctx.options["min_labels"]:
         return Outcome()
@@ -111,7 +111,7 @@ def _word_like(text: str) -> bool:
     id="line-uneven-axis",
     applies_to=("line",),
     severity="warning",
-    requires=("axes",),
+    requires=("x_axis",),
     options=(Option("max_step_ratio", 1.25, "largest/smallest labelled step that still counts as even", minimum=1.0),),
     rationale="""When numeric x labels with uneven steps (2000, 2005, 2010, 2012) sit at equal
         distances, slopes between them are distorted.""",
@@ -123,7 +123,7 @@ def _word_like(text: str) -> bool:
         fragmentary raster labels or labels cut off by the image edge leave it unmeasured.""",
 )
 def line_uneven_axis(ctx: CheckContext) -> Outcome:
-    axis = ctx.measure("axes").x
+    axis = ctx.measure("x_axis")
     ticks = [t for t in axis.ticks if t.value is not None]
     if not is_vector(ctx.figure) and not _labels_read(axis.labels):
         return Outcome(unmeasured=True, reason="x tick labels not read reliably")
