@@ -365,16 +365,23 @@ class PaletteColour:
     is_grey: bool
 
 
+_CROSS = np.array([[0, 1, 0], [1, 1, 1], [0, 1, 0]], dtype=np.uint8)  # 4-neighbourhood kernel
 _QUANT_BITS = 5  # 32 levels per channel: colours within ~8/255 share a bin
 _QUANT_SHIFT = 8 - _QUANT_BITS
 
 
 def colour_bins(rgb_uint8: np.ndarray) -> np.ndarray:
     """Each colour's bin of 32 levels per channel (colours within ~8/255 share one): 15 bits,
-    the top 5 of each channel, in a uint16, which is several times faster to compute than a
-    wider integer."""
-    q = (rgb_uint8 >> _QUANT_SHIFT).astype(np.uint16)
-    return (q[..., 0] << (2 * _QUANT_BITS)) | (q[..., 1] << _QUANT_BITS) | q[..., 2]
+    the top 5 of each channel (red highest), in a uint16."""
+    import cv2
+
+    colours = np.ascontiguousarray(rgb_uint8)
+    if colours.size == 0:
+        return np.zeros(colours.shape[:-1], dtype=np.uint16)
+    # OpenCV's 15-bit packing of RGB input (BGR555) is exactly this layout, ten times faster
+    # than shifting the channels in numpy.
+    packed = cv2.cvtColor(colours.reshape(-1, 1, 3), cv2.COLOR_RGB2BGR555)
+    return packed.view(np.uint16).reshape(colours.shape[:-1])
 
 
 def _border_pixels(rgb_uint8: np.ndarray, mask: np.ndarray | None) -> np.ndarray:
@@ -382,11 +389,12 @@ def _border_pixels(rgb_uint8: np.ndarray, mask: np.ndarray | None) -> np.ndarray
         return np.concatenate(
             [rgb_uint8[0], rgb_uint8[-1], rgb_uint8[1:-1, 0], rgb_uint8[1:-1, -1]], axis=0
         )
-    inner = mask.copy()
-    inner[1:-1, 1:-1] = mask[1:-1, 1:-1] & mask[:-2, 1:-1] & mask[2:, 1:-1] & mask[1:-1, :-2] & mask[1:-1, 2:]
-    inner[[0, -1], :] = False
-    inner[:, [0, -1]] = False
-    return rgb_uint8[mask & ~inner]
+    import cv2
+
+    # Mask pixels with a 4-neighbour outside the mask or the image are its boundary.
+    mask_uint8 = np.ascontiguousarray(mask, dtype=bool).view(np.uint8)
+    inner = cv2.erode(mask_uint8, _CROSS, borderType=cv2.BORDER_CONSTANT, borderValue=0)
+    return rgb_uint8[cv2.subtract(mask_uint8, inner).view(bool)]
 
 
 def _check_image(rgb_uint8: np.ndarray, mask: np.ndarray | None) -> None:
@@ -421,16 +429,64 @@ def _segment_blend(colour: np.ndarray, ends_a: np.ndarray, ends_b: np.ndarray, t
     return (t > 0.04) & (t < 0.96) & (distance < tolerance) & (length2 > (3 * tolerance) ** 2)
 
 
-def _adjacency(labels: np.ndarray, n_labels: int) -> np.ndarray:
-    """Symmetric count of 4-neighbour pixel pairs between labels (negative labels ignored)."""
-    counts = np.zeros(n_labels * n_labels)
-    for first, second in ((labels[:, :-1], labels[:, 1:]), (labels[:-1, :], labels[1:, :])):
-        differ = first != second  # few pairs differ: gather only those
-        a, b = first[differ].astype(np.int64), second[differ].astype(np.int64)
-        keep = (a >= 0) & (b >= 0)
-        counts += np.bincount(a[keep] * n_labels + b[keep], minlength=n_labels * n_labels)
+@dataclass(frozen=True)
+class _ColourRuns:
+    """Runs of one exact colour along the image rows; a row start and a mask edge end a run
+    too. Charts are mostly flat areas: far fewer runs than pixels, so counts and sums over
+    pixels are taken over runs, weighted by their lengths."""
+
+    starts: np.ndarray  # flat pixel index of each run's first pixel, in raster order
+    lengths: np.ndarray  # pixels
+    rgb: np.ndarray  # k x 3 uint8
+    inside: np.ndarray  # k bool: the run lies inside the mask
+
+
+def _colour_runs(rgb_uint8: np.ndarray, mask: np.ndarray | None) -> _ColourRuns:
+    import cv2
+
+    # One 32-bit code per pixel (colour, and in the fourth byte whether it is in the mask).
+    rgba = cv2.cvtColor(np.ascontiguousarray(rgb_uint8), cv2.COLOR_RGB2RGBA)
+    if mask is not None:
+        rgba[..., 3] = mask
+    codes = rgba.view(np.uint32).ravel()
+    changes = np.empty(codes.size, dtype=bool)
+    changes[0] = True
+    np.not_equal(codes[1:], codes[:-1], out=changes[1:])
+    changes[:: rgb_uint8.shape[1]] = True
+    starts = np.flatnonzero(changes)
+    lengths = np.diff(starts, append=codes.size)
+    run_rgba = rgba.reshape(-1, 4)[starts]
+    return _ColourRuns(starts, lengths, run_rgba[:, :3], run_rgba[:, 3] != 0)
+
+
+def _adjacency(labels: np.ndarray, runs: _ColourRuns, run_labels: np.ndarray, n_labels: int) -> np.ndarray:
+    """Symmetric count of 4-neighbour pixel pairs between labels (negative labels ignored);
+    labels is the image of run_labels, which are constant along each run."""
+    width = labels.shape[1]
+    # Side by side: only where one run meets the next on its row.
+    meets = runs.starts[1:] % width != 0
+    pairs = [(run_labels[:-1][meets], run_labels[1:][meets])]
+    flat = labels.ravel()
+    differ = np.flatnonzero(flat[:-width] != flat[width:])  # few pixels differ from the one below
+    pairs.append((flat[differ], flat[differ + width]))
+    first = np.concatenate([a for a, _ in pairs]).astype(np.int64)
+    second = np.concatenate([b for _, b in pairs]).astype(np.int64)
+    keep = (first >= 0) & (second >= 0) & (first != second)
+    counts = np.bincount(first[keep] * n_labels + second[keep], minlength=n_labels * n_labels).astype(np.float64)
     matrix = counts.reshape(n_labels, n_labels)
     return matrix + matrix.T
+
+
+def _interior(labels: np.ndarray) -> np.ndarray:
+    """uint8 mask (1) of the labelled (>= 0) pixels whose 4 neighbours share their label;
+    none on the image edge."""
+    import cv2
+
+    # All five labels of the cross agree exactly where their minimum equals their maximum.
+    lowest = cv2.erode(labels, _CROSS, borderType=cv2.BORDER_CONSTANT, borderValue=-1)
+    highest = cv2.dilate(labels, _CROSS, borderType=cv2.BORDER_CONSTANT, borderValue=-1)
+    agree = cv2.compare(lowest, highest, cv2.CMP_EQ)
+    return cv2.bitwise_and(agree, cv2.compare(lowest, 0, cv2.CMP_GE)) // 255
 
 
 @dataclass(frozen=True)
@@ -453,19 +509,19 @@ def _colour_clusters(
     _check_image(rgb_uint8, mask)
     height, width = rgb_uint8.shape[:2]
     n_bins = 1 << (3 * _QUANT_BITS)
-    bins = colour_bins(rgb_uint8)
-    # Pixels outside the mask go to one extra bin, dropped below: no gathers over the image.
-    selected = bins if mask is None else np.where(mask, bins, n_bins)
-    counts = np.bincount(selected.ravel(), minlength=n_bins + 1)[:n_bins].astype(np.float64)
+    runs = _colour_runs(rgb_uint8, mask)
+    # Runs outside the mask go to one extra bin, dropped below.
+    run_bins = np.where(runs.inside, colour_bins(runs.rgb), n_bins)
+    lengths = runs.lengths.astype(np.float64)
+    counts = np.bincount(run_bins, weights=lengths, minlength=n_bins + 1)[:n_bins]
     occupied = np.flatnonzero(counts)
     # Mean colour per bin: the bin fixes the high bits; the low bits are summed per bin
     # (small integers, so the float sums are exact).
     low_levels = 1 << _QUANT_SHIFT
     bin_rgb = np.empty((len(occupied), 3))
-    flat_bins = selected.ravel()
     for k in range(3):
-        low_bits = (rgb_uint8[..., k] & (low_levels - 1)).ravel()
-        low_mean = np.bincount(flat_bins, weights=low_bits, minlength=n_bins + 1)[occupied] / counts[occupied]
+        low_bits = (runs.rgb[:, k] & (low_levels - 1)) * lengths
+        low_mean = np.bincount(run_bins, weights=low_bits, minlength=n_bins + 1)[occupied] / counts[occupied]
         high = (occupied >> ((2 - k) * _QUANT_BITS)) & ((1 << _QUANT_BITS) - 1)
         bin_rgb[:, k] = (high << _QUANT_SHIFT) + low_mean  # 0..255
     bin_lab = srgb_to_lab(bin_rgb / 255.0)
@@ -513,18 +569,17 @@ def _colour_clusters(
     label_of_bin = np.full(n_bins + 1, -1, dtype=np.int16)  # at most max_clusters + 1 labels
     label_of_bin[occupied[members]] = cluster_of[members]
     label_of_bin[occupied[is_background]] = n_clusters
-    labels = label_of_bin[selected]
-    interior = np.zeros((height, width), dtype=bool)
-    core = labels[1:-1, 1:-1]
-    interior[1:-1, 1:-1] = (
-        (core >= 0)
-        & (core == labels[:-2, 1:-1])
-        & (core == labels[2:, 1:-1])
-        & (core == labels[1:-1, :-2])
-        & (core == labels[1:-1, 2:])
-    )
-    interior_fraction = np.bincount(labels[interior], minlength=n_clusters + 1)[:n_clusters] / cluster_pixels
-    touching = _adjacency(labels, n_clusters + 1)
+    run_labels = label_of_bin[run_bins]
+    labels = np.repeat(run_labels, runs.lengths).reshape(height, width)
+    interior = _interior(labels)
+    # A run of interior pixels along a row has one label (each pixel's right neighbour
+    # shares its label), and no run reaches the image edge: count them per label by runs.
+    flat = interior.ravel()
+    edges = np.flatnonzero(flat[1:] != flat[:-1]) + 1
+    starts, ends = edges[0::2], edges[1::2]
+    interior_pixels = np.bincount(labels.ravel()[starts], weights=ends - starts, minlength=n_clusters + 1)
+    interior_fraction = interior_pixels[:n_clusters] / cluster_pixels
+    touching = _adjacency(labels, runs, run_labels, n_clusters + 1)
 
     # Anti-aliasing blends: mixes of two colours (or a colour and the background) that
     # have almost no interior and are either smaller than both or touch both.
