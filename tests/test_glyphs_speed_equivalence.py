@@ -13,7 +13,7 @@ from scipy.sparse import coo_matrix
 from scipy.sparse.csgraph import connected_components
 
 from corpusaudit.measure import glyphs
-from corpusaudit.measure.colour import colour_bins
+from corpusaudit.measure.colour import colour_bins, modal_bin
 
 
 @pytest.mark.parametrize("seed", range(40))
@@ -91,7 +91,7 @@ def test_modal_bin_mean_and_medians_match_numpy(seed):
     bins = colour_bins(samples)
     counts = np.bincount(bins)
     mode = int(counts.argmax())
-    low, count = glyphs.modal_bin(patch, mask.view(np.uint8))
+    low, count = modal_bin(patch, mask.view(np.uint8))
     assert low == ((mode >> 10) * 8, ((mode >> 5) & 31) * 8, (mode & 31) * 8) and count == counts[mode]
     assert np.array_equal(glyphs._modal(patch, mask.view(np.uint8)), samples[bins == mode].mean(axis=0) / 255.0)
     assert np.array_equal(glyphs._channel_medians(samples), np.median(samples, axis=0))

@@ -396,12 +396,11 @@ def _modal_colour(patch: np.ndarray, mask: np.ndarray | None) -> np.ndarray:
     patch (all when None), 0..1: the bin makes it robust to JPEG noise, the exact mode keeps
     anti-aliased edge pixels from tinting it. Both are read from histograms; a histogram of
     the bin's levels counts its colours in their sorted order, so ties go to the lowest."""
-    low, _ = glyphs.modal_bin(patch, mask)
-    span = glyphs.BIN_LEVELS
+    low, _ = colour.modal_bin(patch, mask)
+    span = colour.BIN_LEVELS
     exact = cv2.calcHist([patch], [0, 1, 2], mask, [span] * 3, [level for v in low for level in (v, v + span)])
-    red, rest = divmod(int(np.argmax(exact)), span * span)
-    green, blue = divmod(rest, span)
-    return np.array([low[0] + red, low[1] + green, low[2] + blue]) / 255.0
+    offset = np.unravel_index(int(np.argmax(exact)), exact.shape)
+    return (np.array(low) + offset) / 255.0
 
 
 # Each 8-bit level as a 0..1 value, as pixels are compared with a stated colour.

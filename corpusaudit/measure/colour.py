@@ -368,6 +368,7 @@ class PaletteColour:
 _CROSS = np.array([[0, 1, 0], [1, 1, 1], [0, 1, 0]], dtype=np.uint8)  # 4-neighbourhood kernel
 _QUANT_BITS = 5  # 32 levels per channel: colours within ~8/255 share a bin
 _QUANT_SHIFT = 8 - _QUANT_BITS
+BIN_LEVELS = 1 << _QUANT_SHIFT  # levels per channel in one bin
 
 
 def colour_bins(rgb_uint8: np.ndarray) -> np.ndarray:
@@ -382,6 +383,18 @@ def colour_bins(rgb_uint8: np.ndarray) -> np.ndarray:
     # than shifting the channels in numpy.
     packed = cv2.cvtColor(colours.reshape(-1, 1, 3), cv2.COLOR_RGB2BGR555)
     return packed.view(np.uint16).reshape(colours.shape[:-1])
+
+
+def modal_bin(patch: np.ndarray, mask: np.ndarray | None) -> tuple[tuple[int, int, int], int]:
+    """The most common bin of colour_bins among the pixels of an HxWx3 uint8 patch that the
+    uint8 mask selects (all when None): its lowest level per channel, and its pixel count. A
+    histogram over the patch, without gathering the pixels first; ties go to the lowest bin,
+    as the argmax of a bincount of the bins does."""
+    import cv2
+
+    hist = cv2.calcHist([patch], [0, 1, 2], mask, [1 << _QUANT_BITS] * 3, [0, 256] * 3)
+    peak = np.unravel_index(int(np.argmax(hist)), hist.shape)
+    return tuple(int(v) * BIN_LEVELS for v in peak), int(hist[peak])
 
 
 def _border_pixels(rgb_uint8: np.ndarray, mask: np.ndarray | None) -> np.ndarray:
@@ -463,14 +476,11 @@ def _adjacency(labels: np.ndarray, runs: _ColourRuns, run_labels: np.ndarray, n_
     """Symmetric count of 4-neighbour pixel pairs between labels (negative labels ignored);
     labels is the image of run_labels, which are constant along each run."""
     width = labels.shape[1]
-    # Side by side: only where one run meets the next on its row.
-    meets = runs.starts[1:] % width != 0
-    pairs = [(run_labels[:-1][meets], run_labels[1:][meets])]
+    meets = runs.starts[1:] % width != 0  # side by side: only where one run meets the next on its row
     flat = labels.ravel()
     differ = np.flatnonzero(flat[:-width] != flat[width:])  # few pixels differ from the one below
-    pairs.append((flat[differ], flat[differ + width]))
-    first = np.concatenate([a for a, _ in pairs]).astype(np.int64)
-    second = np.concatenate([b for _, b in pairs]).astype(np.int64)
+    first = np.concatenate([run_labels[:-1][meets], flat[differ]]).astype(np.int64)
+    second = np.concatenate([run_labels[1:][meets], flat[differ + width]]).astype(np.int64)
     keep = (first >= 0) & (second >= 0) & (first != second)
     counts = np.bincount(first[keep] * n_labels + second[keep], minlength=n_labels * n_labels).astype(np.float64)
     matrix = counts.reshape(n_labels, n_labels)
@@ -517,10 +527,9 @@ def _colour_clusters(
     occupied = np.flatnonzero(counts)
     # Mean colour per bin: the bin fixes the high bits; the low bits are summed per bin
     # (small integers, so the float sums are exact).
-    low_levels = 1 << _QUANT_SHIFT
     bin_rgb = np.empty((len(occupied), 3))
     for k in range(3):
-        low_bits = (runs.rgb[:, k] & (low_levels - 1)) * lengths
+        low_bits = (runs.rgb[:, k] & (BIN_LEVELS - 1)) * lengths
         low_mean = np.bincount(run_bins, weights=low_bits, minlength=n_bins + 1)[occupied] / counts[occupied]
         high = (occupied >> ((2 - k) * _QUANT_BITS)) & ((1 << _QUANT_BITS) - 1)
         bin_rgb[:, k] = (high << _QUANT_SHIFT) + low_mean  # 0..255

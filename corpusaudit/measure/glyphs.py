@@ -28,6 +28,7 @@ from dataclasses import dataclass, field
 import cv2
 import numpy as np
 
+from corpusaudit.measure.colour import BIN_LEVELS, modal_bin
 from corpusaudit.model import BBox, RGB
 
 MIN_CONTRAST = 14  # grey levels from the local background: JPEG noise on flat areas stays below
@@ -362,22 +363,6 @@ def _heights(top: np.ndarray, bottom: np.ndarray, aspect: np.ndarray) -> tuple[f
     if _median(aspect[resting]) <= TALL_ASPECT:
         return _median(rest_heights), None
     return None, _median(rest_heights)
-
-
-BIN_LEVELS = 8  # levels per channel in a bin of colour.colour_bins (the top 5 bits of each channel)
-
-
-def modal_bin(patch: np.ndarray, mask: np.ndarray | None) -> tuple[tuple[int, int, int], int]:
-    """The most common bin of colour.colour_bins among the pixels of an HxWx3 uint8 patch
-    that the uint8 mask selects (all when None): its lowest level per channel, and its pixel
-    count. A histogram over the patch, without gathering the pixels first; ties go to the
-    lowest bin, as the argmax of a bincount of the bins does."""
-    hist = cv2.calcHist([patch], [0, 1, 2], mask, [256 // BIN_LEVELS] * 3, [0, 256] * 3)
-    index = int(np.argmax(hist))
-    side = 256 // BIN_LEVELS
-    red, rest = divmod(index, side * side)
-    green, blue = divmod(rest, side)
-    return (red * BIN_LEVELS, green * BIN_LEVELS, blue * BIN_LEVELS), int(hist.flat[index])
 
 
 def _modal(patch: np.ndarray, mask: np.ndarray) -> np.ndarray:
