@@ -1,6 +1,7 @@
 """Throughput of the audit against the bare cost of PyMuPDF, at 10, 100 and 1,000 documents.
 
-For each corpus size (sample-corpus style documents from corpusaudit.democorpus) it prints
+For each corpus size (sample-corpus style documents from corpusaudit.democorpus, each corpus
+the first documents of the next larger one) it prints
 wall time, documents and pages per second, time per document, the peak resident memory
 of the biggest worker, the speed-up of --jobs 2 over --jobs 1, and the ratio of the
 audit's wall time to a floor: PyMuPDF alone, in one process, opening every document,
@@ -17,6 +18,7 @@ from __future__ import annotations
 import argparse
 import csv
 import os
+import shutil
 import statistics
 import sys
 import time
@@ -34,15 +36,21 @@ from corpusaudit.run import RunOptions, audit  # noqa: E402
 import pymupdf  # noqa: E402
 
 WORK = REPO / "benchmarks" / "_work" / "throughput"
+# One seed for every size: the generator draws documents in sequence, so each corpus is the
+# first documents of the larger ones and sizes differ in count, not in the mix of documents.
+CORPUS_SEED = 0
 
 
 def corpus_of(size: int) -> Path:
     folder = WORK / f"corpus-{size}"
-    if not (folder / ".complete").exists():
+    marker = folder / ".complete"
+    if not marker.exists() or marker.read_text() != f"seed {CORPUS_SEED}":
+        if folder.exists():
+            shutil.rmtree(folder)
         # built in a child: drawing the charts enlarges this process, which every audit's
         # workers are forked from (their resident size would count it)
-        in_child(build_corpus, folder, size, seed=size)
-        (folder / ".complete").write_text("ok")
+        in_child(build_corpus, folder, size, seed=CORPUS_SEED)
+        marker.write_text(f"seed {CORPUS_SEED}")
     return folder
 
 
