@@ -119,7 +119,9 @@ def stage_split(folder: Path) -> dict[str, float]:
     stages = {"extract_document": "extract (PyMuPDF reading, regions, renders)", "_predictions": "classify",
               "check_figure": "measure and check", "_png": "encode PNGs"}
     config = load_config(None)
-    documents = discover([str(folder)], WORK / "scratch", exclude=WORK / "none")
+    # the corpus' manifest and truth files are skipped rows of the audit, not documents
+    documents = [doc for doc in discover([str(folder)], WORK / "scratch", exclude=WORK / "none")
+                 if doc.status == "ok"]
     run_module._classifier()
     try:
         for name, stage in stages.items():
