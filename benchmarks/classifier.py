@@ -291,7 +291,7 @@ def main() -> None:
         return
     classifier = load_classifier(args.model)
     if classifier is None:
-        raise SystemExit("no model: run `corpusaudit train --out models/chart_classifier.skops` first")
+        raise SystemExit("no model: run `corpusaudit train --out models/chart_classifier.npz` first")
     if not args.skip_a:
         held_out = ((lab, synth.render(lab, seed)) for lab, seed in synth.sample_seeds(args.per_class, HELD_OUT_SEED))
         evaluate(classifier, held_out, "(a) held-out generated figures")

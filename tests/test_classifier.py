@@ -27,7 +27,7 @@ CARD = ROOT / "models" / "README.md"
 @pytest.fixture(scope="module")
 def classifier():
     clf = load_classifier()
-    assert clf is not None, "models/chart_classifier.skops is missing"
+    assert clf is not None, "models/chart_classifier.npz is missing"
     return clf
 
 
@@ -109,10 +109,18 @@ def test_greyscale_input_is_accepted(classifier):
 
 
 def _copy_model(tmp_path: Path) -> Path:
-    target = tmp_path / "copy.skops"
+    target = tmp_path / "copy.npz"
     shutil.copy(MODEL_FILE, target)
     shutil.copy(MODEL_FILE.with_suffix(".json"), target.with_suffix(".json"))
     return target
+
+
+def _with_matching_metadata(path: Path) -> Path:
+    """Metadata that records this file's own hash: the checks after the hash must refuse it."""
+    path.with_suffix(".json").write_text(json.dumps({
+        "sha256": hashlib.sha256(path.read_bytes()).hexdigest(),
+        "feature_version": features.FEATURE_VERSION, "classes": sorted(CHART_TYPES)}))
+    return path
 
 
 def test_user_copy_with_metadata_loads(tmp_path):
@@ -128,32 +136,60 @@ def test_tampered_model_is_refused(tmp_path):
         load_classifier(target)
 
 
+def test_model_without_metadata_is_refused(tmp_path):
+    target = _copy_model(tmp_path)
+    target.with_suffix(".json").unlink()
+    with pytest.raises(ModelIntegrityError, match="no metadata"):
+        load_classifier(target)
+
+
+def test_model_for_other_features_is_refused(tmp_path):
+    target = _copy_model(tmp_path)
+    meta = json.loads(target.with_suffix(".json").read_text())
+    target.with_suffix(".json").write_text(json.dumps(meta | {"feature_version": features.FEATURE_VERSION + 1}))
+    with pytest.raises(ModelIntegrityError, match="feature version"):
+        load_classifier(target)
+
+
 def test_foreign_file_is_refused(tmp_path):
-    foreign = tmp_path / "foreign.skops"
+    foreign = tmp_path / "foreign.npz"
     foreign.write_bytes(b"\x80\x04\x95not a model at all")  # a pickle-looking header
     with pytest.raises(ModelIntegrityError, match="metadata"):
         load_classifier(foreign)
-    # Even with metadata that matches its hash, a non-skops file is refused before any unpickling.
-    foreign.with_suffix(".json").write_text(json.dumps({
-        "sha256": hashlib.sha256(foreign.read_bytes()).hexdigest(),
-        "feature_version": features.FEATURE_VERSION, "classes": sorted(CHART_TYPES)}))
-    with pytest.raises(ModelIntegrityError, match="not a skops model"):
-        load_classifier(foreign)
+    # Even with metadata that matches its hash, a file that is not an .npz is refused.
+    with pytest.raises(ModelIntegrityError, match="not a compiled model file"):
+        load_classifier(_with_matching_metadata(foreign))
 
 
-def test_untrusted_type_inside_model_is_refused(tmp_path):
-    import os
+class _TouchesWhenUnpickled:
+    """Unpickling this calls Path.touch: the marker file shows whether a loader ran code."""
 
-    import skops.io as sio
-    from sklearn.preprocessing import FunctionTransformer
+    def __init__(self, marker: Path):
+        self.marker = marker
 
-    odd = tmp_path / "odd.skops"
-    sio.dump(FunctionTransformer(os.system), odd)  # a function that must never be loaded from a model
-    odd.with_suffix(".json").write_text(json.dumps({
-        "sha256": hashlib.sha256(odd.read_bytes()).hexdigest(),
-        "feature_version": features.FEATURE_VERSION, "classes": []}))
-    with pytest.raises(ModelIntegrityError, match="trusted"):
-        load_classifier(odd)
+    def __reduce__(self):
+        return Path.touch, (self.marker,)
+
+
+def test_object_array_inside_model_is_refused_without_running_it(tmp_path):
+    marker = tmp_path / "code_ran"
+    with np.load(MODEL_FILE, allow_pickle=False) as shipped:
+        arrays = {name: shipped[name] for name in shipped.files}
+    arrays["classes"] = np.array([_TouchesWhenUnpickled(marker)] * len(CHART_TYPES), dtype=object)
+    odd = tmp_path / "odd.npz"
+    np.savez(odd, **arrays)  # numpy pickles object arrays when saving
+    with pytest.raises(ModelIntegrityError, match="plain data"):
+        load_classifier(_with_matching_metadata(odd))
+    assert not marker.exists()
+
+
+def test_model_missing_an_array_is_refused(tmp_path):
+    with np.load(MODEL_FILE, allow_pickle=False) as shipped:
+        arrays = {name: shipped[name] for name in shipped.files if name != "threshold"}
+    partial = tmp_path / "partial.npz"
+    np.savez(partial, **arrays)
+    with pytest.raises(ModelIntegrityError, match="missing arrays: threshold"):
+        load_classifier(_with_matching_metadata(partial))
 
 
 def _marks(image: np.ndarray) -> dict[str, float]:
@@ -205,21 +241,40 @@ def test_mark_features_keep_a_curve_crossing_grid_rules_in_one_piece():
 def test_tiny_training_smoke(tmp_path, monkeypatch):
     from corpusaudit.classify import train as train_module
 
-    out = tmp_path / "tiny.skops"
+    out = tmp_path / "tiny.npz"
     extra = tmp_path / "house"
     (extra / "pie").mkdir(parents=True)
     Image.fromarray(synth.render("pie", 5)).save(extra / "pie" / "house_pie.png")
-    # one fast candidate keeps the smoke test short; the real run compares several
+    # one candidate with few rounds keeps the smoke test short; the real run compares several
     all_candidates = train_module.candidates
     monkeypatch.setattr(train_module, "candidates", lambda seed, n: {
-        "logistic_regression": all_candidates(seed, n)["logistic_regression"]})
+        "gradient_boosting": all_candidates(seed, n)["gradient_boosting"].set_params(max_iter=5)})
     report = train_module.train(out, samples_per_class=5, seed=3, extra_dirs=[extra])
     assert report.samples == 51 and report.extra_samples == 1
     assert report.sha256 == hashlib.sha256(out.read_bytes()).hexdigest()
-    assert report.cv_macro_f1 == report.cv_scores["logistic_regression"]
+    assert report.cv_macro_f1 == report.cv_scores["gradient_boosting"]
+    with np.load(out, allow_pickle=False) as written:  # plain arrays only
+        assert written["tree_starts"].size == 5 * len(CHART_TYPES) + 1
     rows = train_module.classify_paths([extra / "pie" / "house_pie.png", tmp_path / "missing.png"], out)
     assert rows[0]["chart_type"] in CHART_TYPES and rows[0]["error"] == ""
     assert rows[1]["chart_type"] == "" and "missing.png" in rows[1]["error"]
+
+
+def test_training_refuses_a_winner_the_model_format_cannot_hold(tmp_path, monkeypatch):
+    import time
+
+    from corpusaudit.classify import train as train_module
+    from corpusaudit.classify.compiled import UnsupportedModelError
+
+    all_candidates = train_module.candidates
+    monkeypatch.setattr(train_module, "candidates", lambda seed, n: {
+        "logistic_regression": all_candidates(seed, n)["logistic_regression"]})
+    rng = np.random.default_rng(0)
+    X, y = rng.normal(size=(60, 8)), np.repeat(sorted(CHART_TYPES), 6)
+    out = tmp_path / "linear.npz"
+    with pytest.raises(UnsupportedModelError, match="chose logistic_regression.*Pipeline"):
+        train_module.fit_and_save(X, y, out, 0, {}, 0, time.perf_counter(), time.process_time(), {})
+    assert not out.exists()
 
 
 def test_extra_folder_with_unknown_label_is_an_error(tmp_path):

@@ -11,16 +11,16 @@ figure low-confidence (Figure.low_confidence).
 from __future__ import annotations
 
 from dataclasses import dataclass
-from functools import lru_cache
 from pathlib import Path
 
 import numpy as np
 
 from . import features
+from .compiled import CompiledModel
 from .model import ModelIntegrityError, load
 
 MODELS_DIR = Path(__file__).resolve().parents[2] / "models"
-MODEL_FILE = MODELS_DIR / "chart_classifier.skops"
+MODEL_FILE = MODELS_DIR / "chart_classifier.npz"
 LOW_CONFIDENCE = 0.5
 
 __all__ = ["Classifier", "LOW_CONFIDENCE", "MODEL_FILE", "ModelIntegrityError", "Prediction", "load_classifier"]
@@ -37,30 +37,16 @@ class Prediction:
         return self.confidence < LOW_CONFIDENCE
 
 
-@lru_cache(maxsize=1)
-def _thread_controller():
-    from threadpoolctl import ThreadpoolController
-
-    return ThreadpoolController()
-
-
-def _single_thread():
-    return _thread_controller().limit(limits=1, user_api="openmp")
-
-
 class Classifier:
-    """A calibrated scikit-learn model over features.extract()."""
+    """The compiled chart-type model (compiled.CompiledModel) over features.extract()."""
 
-    def __init__(self, estimator, metadata: dict):
-        self.estimator = estimator
+    def __init__(self, model: CompiledModel, metadata: dict):
+        self.model = model
         self.metadata = metadata
-        self.classes = tuple(str(c) for c in estimator.classes_)
+        self.classes = model.classes
 
     def probabilities(self, feature_rows: np.ndarray) -> np.ndarray:
-        # One figure is too little work to share out: starting OpenMP threads costs more than the trees,
-        # and the pipeline already runs one worker per core.
-        with _single_thread():
-            return self.estimator.predict_proba(np.atleast_2d(feature_rows))
+        return self.model.predict_proba(np.atleast_2d(feature_rows))
 
     def _prediction(self, proba: np.ndarray) -> Prediction:
         order = np.argsort(proba)[::-1][:3]
@@ -75,8 +61,7 @@ class Classifier:
         return self.predict_many([rgb])[0]
 
     def predict_many(self, images: list[np.ndarray]) -> list[Prediction]:
-        """Chart types of several images in one call: the trees' per-call overhead (most of the
-        model's time on one figure) is paid once for a whole document."""
+        """Chart types of several images in one call: the trees are walked once for a whole document."""
         if not images:
             return []
         rows = np.stack([features.extract(rgb) for rgb in images])
@@ -86,12 +71,12 @@ class Classifier:
 def load_classifier(path: str | Path | None = None) -> Classifier | None:
     """The shipped model (None while models/ holds none), or the model at `path`.
 
-    Either is checked against the sha256 in its metadata JSON and loaded with an explicit list of
-    trusted types; a changed, foreign or mismatched file raises ModelIntegrityError.
+    Either is checked against the sha256 in its metadata JSON and read as plain arrays (never
+    unpickled); a changed, foreign or mismatched file raises ModelIntegrityError.
     """
     if path is None:
         if not MODEL_FILE.exists():
             return None
         path = MODEL_FILE
     loaded = load(Path(path))
-    return Classifier(loaded.estimator, loaded.metadata)
+    return Classifier(loaded.model, loaded.metadata)

@@ -1,7 +1,8 @@
-"""Saving and loading the classifier safely: skops format, an explicit list of trusted types,
-and a JSON metadata file next to the model that records its sha256, classes and feature version.
+"""Saving and loading the classifier safely: a .npz of plain numeric and string arrays (the
+compiled model, corpusaudit/classify/compiled.py) and a JSON metadata file next to it that
+records the file's sha256, the classes and the feature version.
 
-Plain pickle is never used: a pickle runs arbitrary code when loaded.
+The arrays are read with allow_pickle=False, so loading a model file can never run code.
 """
 
 from __future__ import annotations
@@ -11,51 +12,24 @@ import json
 import zipfile
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Any
 
-import skops.io as sio
+import numpy as np
 
 from . import features
+from .compiled import CompiledModel, MalformedModelError
 
-# Every non-builtin type the shipped estimator (temperature-calibrated gradient boosting) holds.
-# Anything else inside a model file makes loading fail instead of running unknown code.
-TRUSTED_TYPES = [
-    "sklearn.calibration.CalibratedClassifierCV",
-    "sklearn.calibration._CalibratedClassifier",
-    "sklearn.calibration._TemperatureScaling",
-    "sklearn.frozen._frozen.FrozenEstimator",
-    "sklearn.ensemble._hist_gradient_boosting.gradient_boosting.HistGradientBoostingClassifier",
-    "sklearn.ensemble._hist_gradient_boosting.binning._BinMapper",
-    "sklearn.ensemble._hist_gradient_boosting.predictor.TreePredictor",
-    "sklearn._loss.loss.HalfMultinomialLoss",
-    "sklearn._loss.link.MultinomialLogit",
-    "sklearn._loss.link.Interval",
-    "sklearn._loss._loss.CyHalfMultinomialLoss",
-    "sklearn.preprocessing._label.LabelEncoder",
-    "sklearn.pipeline.Pipeline",
-    "sklearn.preprocessing._data.StandardScaler",
-    "sklearn.linear_model._logistic.LogisticRegression",
-    "sklearn.neural_network._multilayer_perceptron.MLPClassifier",
-    "sklearn.neural_network._stochastic_optimizers.AdamOptimizer",
-    "sklearn.preprocessing._label.LabelBinarizer",
-    "numpy.dtype",
-    "numpy.ndarray",
-    "numpy.float64",
-    "numpy.int64",
-    "numpy.random.mtrand.RandomState",
-    "builtins.slice",
-    "sklearn.utils._bunch.Bunch",
-]
+# A fixed time stamp in the archive: the same model always gives the same bytes (and sha256).
+ARCHIVE_TIME = (1980, 1, 1, 0, 0, 0)
 
 
 class ModelIntegrityError(RuntimeError):
-    """A model file is missing its metadata, does not match its recorded hash, holds untrusted
-    types, or was made for other features: it is refused rather than loaded."""
+    """A model file is missing its metadata, does not match its recorded hash, is not a compiled
+    model, or was made for other features: it is refused rather than loaded."""
 
 
 @dataclass(frozen=True)
 class LoadedModel:
-    estimator: Any
+    model: CompiledModel
     metadata: dict
 
 
@@ -71,21 +45,40 @@ def metadata_path(model_path: Path) -> Path:
     return model_path.with_suffix(".json")
 
 
-def save(estimator: Any, path: Path, metadata: dict) -> dict:
-    """Write the model (skops) and its metadata (JSON with the file's sha256); return the metadata."""
+def write_arrays(arrays: dict[str, np.ndarray], path: Path) -> None:
+    """An .npz numpy.load reads, written entry by entry so that no time stamp enters the file."""
+    with zipfile.ZipFile(path, "w") as archive:
+        for name in sorted(arrays):
+            entry = zipfile.ZipInfo(f"{name}.npy", date_time=ARCHIVE_TIME)
+            entry.compress_type = zipfile.ZIP_DEFLATED
+            with archive.open(entry, "w") as fh:
+                np.lib.format.write_array(fh, np.asarray(arrays[name], order="C"), allow_pickle=False)
+
+
+def save(model: CompiledModel, path: Path, metadata: dict) -> dict:
+    """Write the compiled model (.npz) and its metadata (JSON with the file's sha256); return the metadata."""
     path.parent.mkdir(parents=True, exist_ok=True)
-    sio.dump(estimator, path, compression=zipfile.ZIP_DEFLATED, compresslevel=9)
-    untrusted = sorted(set(sio.get_untrusted_types(file=path)) - set(TRUSTED_TYPES))
-    if untrusted:
-        path.unlink()
-        raise ModelIntegrityError(f"model holds types missing from TRUSTED_TYPES: {', '.join(untrusted)}")
+    write_arrays(model.arrays, path)
     meta = dict(metadata, sha256=sha256_of(path), file=path.name, bytes=path.stat().st_size)
     metadata_path(path).write_text(json.dumps(meta, indent=2, sort_keys=True) + "\n")
     return meta
 
 
+def read_arrays(path: Path) -> dict[str, np.ndarray]:
+    """Every array of an .npz, never unpickling; ModelIntegrityError for anything else."""
+    if not zipfile.is_zipfile(path):
+        raise ModelIntegrityError(f"{path.name} is not a compiled model file (.npz)")
+    try:
+        with np.load(path, allow_pickle=False) as archive:
+            return {name: archive[name] for name in archive.files}
+    except ValueError as exc:  # numpy refuses object arrays when pickling is off
+        raise ModelIntegrityError(f"{path.name} holds an array that cannot be read as plain data: {exc}") from exc
+    except (OSError, zipfile.BadZipFile, EOFError) as exc:
+        raise ModelIntegrityError(f"{path.name} could not be read as an .npz: {exc}") from exc
+
+
 def load(path: Path) -> LoadedModel:
-    """Load a model after checking its metadata, its hash and its types; ModelIntegrityError if any fails."""
+    """Load a model after checking its metadata, its hash and its arrays; ModelIntegrityError if any fails."""
     meta_file = metadata_path(path)
     if not path.is_file():
         raise ModelIntegrityError(f"model file not found: {path}")
@@ -104,17 +97,15 @@ def load(path: Path) -> LoadedModel:
         raise ModelIntegrityError(
             f"{path.name} was trained on feature version {meta.get('feature_version')}, "
             f"this code computes version {features.FEATURE_VERSION}: retrain it")
-    if not zipfile.is_zipfile(path):
-        raise ModelIntegrityError(f"{path.name} is not a skops model file")
+    arrays = read_arrays(path)
     try:
-        estimator = sio.load(path, trusted=TRUSTED_TYPES)
-    except sio.exceptions.UntrustedTypesFoundException as exc:
-        raise ModelIntegrityError(f"{path.name} holds types outside the trusted list: {exc}") from exc
-    except Exception as exc:  # skops raises many kinds of error on a malformed archive
-        raise ModelIntegrityError(f"{path.name} could not be read as a skops model: {exc}") from exc
-    if not hasattr(estimator, "predict_proba") or not hasattr(estimator, "classes_"):
-        raise ModelIntegrityError(f"{path.name} holds a {type(estimator).__name__}, not a fitted classifier")
-    classes = [str(c) for c in estimator.classes_]
-    if classes != list(meta.get("classes", [])):
-        raise ModelIntegrityError(f"{path.name} predicts {classes}, its metadata says {meta.get('classes')}")
-    return LoadedModel(estimator, meta)
+        model = CompiledModel.from_arrays(arrays)
+    except MalformedModelError as exc:
+        raise ModelIntegrityError(f"{path.name} is not a valid compiled model: {exc}") from exc
+    if list(model.classes) != list(meta.get("classes", [])):
+        raise ModelIntegrityError(
+            f"{path.name} predicts {list(model.classes)}, its metadata says {meta.get('classes')}")
+    if "feature_count" in meta and meta["feature_count"] != model.n_features:
+        raise ModelIntegrityError(f"{path.name} reads {model.n_features} features, "
+                                  f"its metadata says {meta['feature_count']}")
+    return LoadedModel(model, meta)

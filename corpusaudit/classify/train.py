@@ -2,7 +2,8 @@
 
 train(out, samples_per_class, seed, extra_dirs) generates labelled figures (synth), computes
 features, picks a scikit-learn model by stratified cross-validation (macro-F1), calibrates its
-probabilities (temperature scaling on a held-out split) and writes the model with its metadata.
+probabilities (temperature scaling on a held-out split) and writes it compiled to plain arrays
+(compiled.export) with its metadata: the scikit-learn objects never leave training.
 """
 
 from __future__ import annotations
@@ -19,6 +20,7 @@ from PIL import Image, UnidentifiedImageError
 
 from ..model import CHART_TYPES
 from . import features, load_classifier, synth
+from .compiled import UnsupportedModelError, export
 from .model import save
 
 log = logging.getLogger(__name__)
@@ -107,15 +109,14 @@ def folder_features(folders: Iterable[Path]) -> tuple[np.ndarray, np.ndarray]:
 
 def library_versions() -> dict[str, str]:
     import cv2
-    import skops
     import sklearn
 
     return {"python": platform.python_version(), "numpy": np.__version__, "scikit-learn": sklearn.__version__,
-            "skops": skops.__version__, "opencv": cv2.__version__, "pillow": Image.__version__}
+            "opencv": cv2.__version__, "pillow": Image.__version__}
 
 
 def train(out: Path, samples_per_class: int, seed: int, extra_dirs: Sequence[Path] = ()) -> TrainReport:
-    """Generate data, select and calibrate a model, write `out` (skops) and its .json metadata."""
+    """Generate data, select and calibrate a model, write `out` (compiled .npz) and its .json metadata."""
     started, cpu_started = time.perf_counter(), time.process_time()
     X, y = generated_features(samples_per_class, seed)
     X_extra, y_extra = folder_features(extra_dirs)
@@ -129,7 +130,8 @@ def train(out: Path, samples_per_class: int, seed: int, extra_dirs: Sequence[Pat
 
 def fit_and_save(X: np.ndarray, y: np.ndarray, out: Path, seed: int, generator: dict, extra_samples: int,
                  started: float, cpu_started: float, timing: dict) -> TrainReport:
-    """Pick the candidate with the best cross-validated macro-F1, fit and calibrate it, save it."""
+    """Pick the candidate with the best cross-validated macro-F1, fit and calibrate it, save it compiled.
+    The compiled format holds gradient boosting only: another winner raises UnsupportedModelError."""
     from sklearn.calibration import CalibratedClassifierCV
     from sklearn.frozen import FrozenEstimator
     from sklearn.model_selection import StratifiedKFold, cross_val_score, train_test_split
@@ -166,7 +168,12 @@ def fit_and_save(X: np.ndarray, y: np.ndarray, out: Path, seed: int, generator: 
         **timing,
         "library_versions": library_versions(),
     }
-    meta = save(calibrated, out, metadata)
+    try:
+        compiled = export(calibrated)
+    except UnsupportedModelError as exc:
+        raise UnsupportedModelError(
+            f"cross-validation chose {best}, which the model format cannot hold: {exc}") from exc
+    meta = save(compiled, out, metadata)
     counts = {label: int((y == label).sum()) for label in CHART_TYPES}
     return TrainReport(out, meta["sha256"], meta["bytes"], best, scores[best], scores, int(len(y)), int(extra_samples),
                        time.perf_counter() - started, counts)
