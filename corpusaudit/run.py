@@ -136,9 +136,9 @@ def _vector_pie(figure: Figure, measurements: Measurements) -> bool:
 
 def _warm_up_before_forking() -> None:
     """Load here what every worker forked from this process would otherwise load on its first
-    document (a new worker every 25 documents): the model (about 1 s), the extraction modules
-    imported on demand, Pillow's image plugins, the text recogniser with its model, and one
-    prediction for scikit-learn's and threadpoolctl's first-call set-up (about 0.2 s in all)."""
+    document (a new worker every 25 documents): the extraction modules imported on demand,
+    Pillow's image plugins, the text recogniser with its model (about 0.1 s), the model (about
+    10 ms), and one prediction for the first-call set-up of the feature code (about 10 ms)."""
     import PIL.Image
 
     import corpusaudit.extract.images  # noqa: F401

@@ -260,21 +260,27 @@ def test_tiny_training_smoke(tmp_path, monkeypatch):
     assert rows[1]["chart_type"] == "" and "missing.png" in rows[1]["error"]
 
 
-def test_training_refuses_a_winner_the_model_format_cannot_hold(tmp_path, monkeypatch):
+def test_training_ships_gradient_boosting_when_a_baseline_scores_higher(tmp_path, monkeypatch, caplog):
+    # The compiled format holds gradient boosting only: a better-scoring baseline is reported, not shipped.
     import time
 
+    from sklearn.ensemble import HistGradientBoostingClassifier
+
     from corpusaudit.classify import train as train_module
-    from corpusaudit.classify.compiled import UnsupportedModelError
 
     all_candidates = train_module.candidates
     monkeypatch.setattr(train_module, "candidates", lambda seed, n: {
+        "gradient_boosting": HistGradientBoostingClassifier(max_iter=1, max_leaf_nodes=2, early_stopping=False),
         "logistic_regression": all_candidates(seed, n)["logistic_regression"]})
     rng = np.random.default_rng(0)
-    X, y = rng.normal(size=(60, 8)), np.repeat(sorted(CHART_TYPES), 6)
-    out = tmp_path / "linear.npz"
-    with pytest.raises(UnsupportedModelError, match="chose logistic_regression.*Pipeline"):
-        train_module.fit_and_save(X, y, out, 0, {}, 0, time.perf_counter(), time.process_time(), {})
-    assert not out.exists()
+    labels = np.repeat(sorted(CHART_TYPES), 8)
+    X = np.eye(len(CHART_TYPES))[np.repeat(np.arange(len(CHART_TYPES)), 8)] * 4 + rng.normal(size=(80, 10))
+    out = tmp_path / "stump.npz"
+    with caplog.at_level("WARNING"):
+        report = train_module.fit_and_save(X, labels, out, 0, {}, 0, time.perf_counter(), time.process_time(), {})
+    assert report.cv_scores["logistic_regression"] > report.cv_scores["gradient_boosting"]
+    assert report.model == "gradient_boosting" and out.exists()
+    assert "logistic_regression scores higher than gradient_boosting" in caplog.text
 
 
 def test_extra_folder_with_unknown_label_is_an_error(tmp_path):
