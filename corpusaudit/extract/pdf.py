@@ -21,7 +21,7 @@ from corpusaudit.extract.raster import (FULL_PAGE_SHARE, PieceGroup, group_piece
 from corpusaudit.extract.regions import (SCATTER_MERGE_PT, Region, attach_labels, attach_titles, group_ink, label_like,
                                          merge_overlapping, union, vector_verdict)
 from corpusaudit.extract.scan import figure_boxes
-from corpusaudit.extract.vector_evidence import (fast_rect, read_drawings, read_text, read_text_runs,
+from corpusaudit.extract.vector_evidence import (read_drawings, read_text, read_text_runs,
                                                    vector_evidence)
 from corpusaudit.model import Document, Figure
 
@@ -172,42 +172,54 @@ def visible_drawings(page: pymupdf.Page) -> list[dict]:
 
     Each path also gets "graphic": the number of the outermost clip smaller than the page that
     holds it (an embedded graphic's bounding box clips all of its content), or None.
+    Paths are read_drawings' dicts: rects are (x0, y0, x1, y1) tuples.
     """
     page_area = abs(page.cropbox.width * page.cropbox.height)
-    clips: list[tuple[int, pymupdf.Rect | None, int | None]] = []  # (level, visible area or None, graphic)
+    clips: list[tuple[int, tuple | None, int | None]] = []  # (level, visible area or None, graphic)
     painted = []
     for number, entry in enumerate(read_drawings(page, extended=True)):
         level = entry.get("level", 0)
         while clips and clips[-1][0] >= level:
             clips.pop()
-        if entry["type"] == "clip":
-            scissor = fast_rect(*entry["scissor"])
+        kind = entry["type"]
+        if kind == "clip":
+            scissor = entry["scissor"]
             graphic = clips[-1][2] if clips else None
             if clips:
                 scissor = None if clips[-1][1] is None else _cut(scissor, clips[-1][1])
+            # the area as Rect.width * Rect.height gives it (a side is max(0, x1 - x0))
             if graphic is None and scissor is not None and \
-                    scissor.width * scissor.height < GRAPHIC_PAGE_SHARE * page_area:
+                    max(0, scissor[2] - scissor[0]) * max(0, scissor[3] - scissor[1]) < GRAPHIC_PAGE_SHARE * page_area:
                 graphic = number
             clips.append((level, scissor, graphic))
             continue
-        if entry["type"] not in ("f", "s", "fs"):
+        if kind not in ("f", "s", "fs"):
             continue  # transparency groups carry no ink of their own
-        entry["graphic"] = clips[-1][2] if clips else None
         if clips:
+            entry["graphic"] = clips[-1][2]
             shown = None if clips[-1][1] is None else _cut(entry["rect"], clips[-1][1])
             if shown is None:
                 continue  # wholly outside its clip: nothing is painted
             entry["rect"] = shown
+        else:
+            entry["graphic"] = None
         painted.append(entry)
     return painted
 
 
-def _cut(rect: pymupdf.Rect, clip: pymupdf.Rect) -> pymupdf.Rect | None:
-    """rect within clip by coordinates (Rect's & rejects the zero-height rects of straight lines)."""
-    x0, y0, x1, y1 = max(rect.x0, clip.x0), max(rect.y0, clip.y0), min(rect.x1, clip.x1), min(rect.y1, clip.y1)
+def _cut(rect: tuple, clip: tuple) -> tuple | None:
+    """rect within clip by coordinates (Rect's & rejects the zero-height rects of straight lines).
+    Comparisons in place of max() and min() calls, keeping the first of equal values as they do:
+    a page may have a hundred thousand paths."""
+    left, top, right, bottom = rect
+    clip_left, clip_top, clip_right, clip_bottom = clip
+    x0 = clip_left if clip_left > left else left
+    y0 = clip_top if clip_top > top else top
+    x1 = clip_right if clip_right < right else right
+    y1 = clip_bottom if clip_bottom < bottom else bottom
     if x0 > x1 or y0 > y1:
         return None
-    return fast_rect(x0, y0, x1, y1)
+    return (x0, y0, x1, y1)
 
 
 def panel_letter(box: pymupdf.Rect, lines: list[TextLine]) -> str:
@@ -380,15 +392,22 @@ def _page_figures(reading: _Page, infos: list[dict], repeated: set[tuple]) -> tu
                       for c in reading.captions if line.bbox[1] >= c.bbox[1] - 0.5 and _within(line.bbox, c.bbox)}
     attachable = label_like(reading.lines, caption_blocks)
     figures_found: list[Region] = []
-    small = [i for r in regions if not r.pictures and vector_verdict(r, drawings, reading.lines, config.min_figure_pt)
-             in ("small", "blank") for i in r.paths]
+
+    def judged(found: list[Region]) -> list[str | None]:
+        """vector_verdict of each region of paths alone (None for one with a picture), once."""
+        return [None if r.pictures else vector_verdict(r, drawings, reading.lines, config.min_figure_pt) for r in found]
+
+    verdicts = judged(regions)
+    small = [i for r, verdict in zip(regions, verdicts) if verdict in ("small", "blank") for i in r.paths]
     if small:  # scattered pieces (frameless scatter plots) may form a figure at a wider distance
-        regions = [r for r in regions if r.pictures or not set(r.paths) <= set(small)] + \
-            group_ink(reading.bounds, drawings, [], SCATTER_MERGE_PT, small)
+        scattered = set(small)
+        kept = [(r, verdict) for r, verdict in zip(regions, verdicts) if r.pictures or not set(r.paths) <= scattered]
+        wider = group_ink(reading.bounds, drawings, [], SCATTER_MERGE_PT, small)
+        regions = [r for r, _ in kept] + wider
+        verdicts = [verdict for _, verdict in kept] + judged(wider)
     tables: list[Region] = []
-    for region in regions:
+    for region, verdict in zip(regions, verdicts):
         if not region.pictures:
-            verdict = vector_verdict(region, drawings, reading.lines, config.min_figure_pt)
             if verdict in ("table", "frame"):
                 tables.append(region)  # a figure after all if its author captioned it as one
             if verdict != "figure":

@@ -12,6 +12,7 @@ Boxes are joined by coordinates (union), since straight lines have zero-width re
 
 from __future__ import annotations
 
+import math
 from collections import Counter
 from dataclasses import dataclass, field
 
@@ -20,6 +21,7 @@ import numpy as np
 import pymupdf
 
 from corpusaudit.extract.captions import TextLine, in_reading_frame, upright
+from corpusaudit.extract.vector_evidence import is_rectangular_quad, rect_columns
 
 MASK_PX_PER_PT = 1.0
 PATH_MERGE_PT = 4.0  # paths closer than this belong to one drawing (ticks to axes, bars to baseline)
@@ -32,6 +34,7 @@ TICK_MAX_PT = 9.0
 TITLE_CENTRE_SHARE = 0.15  # a chart title's centre lies this share of the chart's width from its centre
 TITLE_GAP_LINES = 1.5  # and at most this many of its own line heights from the chart's ink
 WHITE = 0.94  # fills this light carry no visible ink on white paper
+WINDOWS_ONE_BY_ONE = 4000  # fewer path boxes are painted one by one (about 1 us each), more at once (~3 ms)
 
 
 @dataclass
@@ -43,10 +46,15 @@ class Region:
 
 
 def union(rects) -> pymupdf.Rect:
-    """The box around rects by coordinates: Rect's | drops the zero-width rects of straight lines."""
-    rects = list(rects)
-    return pymupdf.Rect(min(r.x0 for r in rects), min(r.y0 for r in rects),
-                        max(r.x1 for r in rects), max(r.y1 for r in rects))
+    """The box around rects (Rects or (x0, y0, x1, y1) tuples) by coordinates: Rect's | drops the
+    zero-width rects of straight lines."""
+    x0, y0, x1, y1 = list(zip(*rects)) or ((), (), (), ())
+    return pymupdf.Rect(min(x0), min(y0), max(x1), max(y1))
+
+
+def _sides(rect) -> tuple[float, float]:
+    """Rect.width and Rect.height of a rect tuple."""
+    return max(0, rect[2] - rect[0]), max(0, rect[3] - rect[1])
 
 
 def _is_white(colour) -> bool:
@@ -60,11 +68,15 @@ def _is_white(colour) -> bool:
 def visible(drawing: dict) -> bool:
     """Does the path put ink on white paper? (a white fill alone does not)"""
     kind = drawing.get("type", "")
-    stroke = "s" in kind and drawing.get("color") is not None and not _is_white(drawing.get("color")) \
-        and (drawing.get("stroke_opacity") is None or drawing["stroke_opacity"] > 0)
-    fill = "f" in kind and drawing.get("fill") is not None and not _is_white(drawing.get("fill")) \
-        and (drawing.get("fill_opacity") is None or drawing["fill_opacity"] > 0)
-    return bool(stroke or fill)
+    if "s" in kind:
+        colour, opacity = drawing.get("color"), drawing.get("stroke_opacity")
+        if colour is not None and not _is_white(colour) and (opacity is None or opacity > 0):
+            return True
+    if "f" in kind:
+        colour, opacity = drawing.get("fill"), drawing.get("fill_opacity")
+        if colour is not None and not _is_white(colour) and (opacity is None or opacity > 0):
+            return True
+    return False
 
 
 def _rectilinear(drawing: dict) -> bool:
@@ -74,7 +86,7 @@ def _rectilinear(drawing: dict) -> bool:
         if op == "re":
             continue
         if op == "qu":
-            if not item[1].is_rectangular:
+            if not is_rectangular_quad(item[1]):
                 return False
             continue
         if op == "l":
@@ -87,60 +99,121 @@ def _rectilinear(drawing: dict) -> bool:
 
 
 def _is_tick(drawing: dict) -> bool:
-    rect = drawing["rect"]
-    long_side, short_side = max(rect.width, rect.height), min(rect.width, rect.height)
+    width, height = _sides(drawing["rect"])
+    long_side, short_side = max(width, height), min(width, height)
     return "s" in drawing.get("type", "") and 1.0 <= long_side <= TICK_MAX_PT and short_side <= 0.5
 
 
-def _paint(mask: np.ndarray, drawing: dict, page_area: float) -> None:
-    rect = drawing["rect"]
+def _outline(mask: np.ndarray, drawing: dict, x0: int, y0: int, x1: int, y1: int) -> None:
+    """A big outline (page border, frame) painted as its outline only, or it would swallow the
+    page; drawn into the rect's window: a clipped outline paints nothing beyond its clip."""
     s = MASK_PX_PER_PT
-    x0, y0 = int(max(rect.x0 * s, 0)), int(max(rect.y0 * s, 0))
-    x1, y1 = int(min(rect.x1 * s, mask.shape[1] - 1)), int(min(rect.y1 * s, mask.shape[0] - 1))
-    if x1 < x0 or y1 < y0:
-        return
-    large = rect.width * rect.height > 0.05 * page_area
-    if large and "f" not in drawing.get("type", ""):
-        # A big outline (page border, frame): its outline only, or it would swallow the page.
-        for item in drawing["items"]:
-            points = [item[1], item[2]] if item[0] == "l" else \
-                [item[1].tl, item[1].tr, item[1].br, item[1].bl, item[1].tl] if item[0] == "re" else \
-                [item[1].ul, item[1].ur, item[1].lr, item[1].ll, item[1].ul] if item[0] == "qu" else \
-                [item[1], item[4]]
-            # drawn into the rect's window: a clipped outline paints nothing beyond its clip
-            polyline = np.array([[p[0] * s - x0, p[1] * s - y0] for p in points], dtype=np.int32)
-            cv2.polylines(mask[y0:y1 + 1, x0:x1 + 1], [polyline], False, 1, 1)
-        return
-    mask[y0:y1 + 1, x0:x1 + 1] = 1
+    for item in drawing["items"]:
+        op = item[0]
+        if op == "l":
+            points = [item[1], item[2]]
+        elif op == "re":
+            left, top, right, bottom = item[1]
+            left, right = (right, left) if right < left else (left, right)  # Rect.normalize
+            top, bottom = (bottom, top) if bottom < top else (top, bottom)
+            points = [(left, top), (right, top), (right, bottom), (left, bottom), (left, top)]
+        elif op == "qu":
+            upper_left, upper_right, lower_left, lower_right = item[1]
+            points = [upper_left, upper_right, lower_right, lower_left, upper_left]
+        else:
+            points = [item[1], item[4]]
+        polyline = np.array([[p[0] * s - x0, p[1] * s - y0] for p in points], dtype=np.int32)
+        cv2.polylines(mask[y0:y1 + 1, x0:x1 + 1], [polyline], False, 1, 1)
 
 
-def _anchor(drawing: dict) -> tuple[int, int]:
-    """A pixel the path certainly painted (its first point when not clipped away, else its box corner)."""
-    rect = drawing["rect"]
-    first = drawing["items"][0] if drawing["items"] else None
-    if first is not None and first[0] in ("l", "c") and rect.x0 <= first[1][0] <= rect.x1 \
-            and rect.y0 <= first[1][1] <= rect.y1:
-        return int(first[1][0] * MASK_PX_PER_PT), int(first[1][1] * MASK_PX_PER_PT)
-    return int(rect.x0 * MASK_PX_PER_PT), int(rect.y0 * MASK_PX_PER_PT)
+def _as_int(values: np.ndarray, low: float, high: float) -> np.ndarray:
+    """int() of each value (toward zero), raising as int() does on the first that is not finite.
+    Values are first clipped to low..high, so that they fit in 64 bits: callers choose a range
+    wide enough that the clipping changes none of their results."""
+    bad = ~np.isfinite(values)
+    if bad.any():
+        int(float(values.ravel()[np.flatnonzero(bad.ravel())[0]]))
+    return np.trunc(np.minimum(np.maximum(values, low), high)).astype(np.int64)
+
+
+def _painted_windows(rects: np.ndarray, width: int, height: int) -> np.ndarray:
+    """Each rect's mask window x0, y0, x1, y1 (inclusive), as int(max(x0 * s, 0)) ..
+    int(min(x1 * s, width - 1)) give it; empty where x1 < x0 or y1 < y0. A start beyond the
+    mask is brought to just past it and an end before it to just before it: an empty window
+    stays empty and the others keep their values."""
+    scaled = rects * MASK_PX_PER_PT
+    x0, y0, x1, y1 = scaled.T
+    x0, y0 = np.where(0 > x0, 0, x0), np.where(0 > y0, 0, y0)  # max(v, 0) keeps v unless 0 > v
+    x1, y1 = np.where(width - 1 < x1, width - 1, x1), np.where(height - 1 < y1, height - 1, y1)
+    return _as_int(np.stack([x0, y0, x1, y1], axis=1), -2, max(width, height) + 1)
+
+
+def _fill_windows(mask: np.ndarray, windows: np.ndarray) -> None:
+    """mask[y0:y1 + 1, x0:x1 + 1] = 1 for every window. Many windows are painted all at once:
+    +1/-1 at the corners of a difference array, summed along both axes (its integral image),
+    which costs a few milliseconds whatever their number."""
+    if len(windows) < WINDOWS_ONE_BY_ONE:
+        for x0, y0, x1, y1 in windows.tolist():
+            mask[y0:y1 + 1, x0:x1 + 1] = 1
+        return
+    height, width = mask.shape
+    x0, y0, x1, y1 = windows.T
+    corners = np.concatenate([y0 * (width + 1) + x0, y0 * (width + 1) + x1 + 1,
+                              (y1 + 1) * (width + 1) + x0, (y1 + 1) * (width + 1) + x1 + 1])
+    signs = np.repeat(np.array([1, -1, -1, 1], dtype=np.int32), len(windows))
+    difference = np.bincount(corners, weights=signs, minlength=(height + 1) * (width + 1))
+    covered = cv2.integral(difference.reshape(height + 1, width + 1))[1:height + 1, 1:width + 1]
+    mask[covered > 0.5] = 1
+
+
+def _anchors(drawings: list[dict], rects: np.ndarray, width: int, height: int) -> np.ndarray:
+    """A pixel each path certainly painted (its first point when not clipped away, else its
+    box corner), before clamping to the mask, as int() gives it."""
+    firsts = [(items[0][1][0], items[0][1][1]) if items and items[0][0] in ("l", "c") else (math.nan, math.nan)
+              for items in (drawing["items"] for drawing in drawings)]
+    px, py = np.array(firsts, dtype=np.float64).reshape(-1, 2).T
+    x0, y0, x1, y1 = rects.T
+    inside = (x0 <= px) & (px <= x1) & (y0 <= py) & (py <= y1)  # never for the missing (nan) points
+    # the caller clamps to the mask: clipping to one pixel beyond it changes nothing
+    return _as_int(np.stack([np.where(inside, px, x0) * MASK_PX_PER_PT,
+                             np.where(inside, py, y0) * MASK_PX_PER_PT], axis=1), -1, max(width, height))
+
+
+def _paint_paths(mask: np.ndarray, drawings: list[dict], candidates: list[int], page_area: float
+                 ) -> tuple[list[int], np.ndarray]:
+    """Paint the footprint of each candidate path but page background fills into mask; the
+    paths painted (indices into drawings) and their rects."""
+    if not candidates:
+        return [], np.zeros((0, 4))
+    height, width = mask.shape
+    rects = rect_columns([drawings[i] for i in candidates])
+    filled = np.array(["f" in drawings[i].get("type", "") for i in candidates], dtype=bool)
+    sides = rects[:, 2:] - rects[:, :2]
+    sides = np.where(sides > 0, sides, 0.0)  # Rect.width, Rect.height
+    area = sides[:, 0] * sides[:, 1]
+    kept = ~((area >= BACKGROUND_PAGE_SHARE * page_area) & filled)
+    used = [index for index, keep in zip(candidates, kept.tolist()) if keep]
+    rects, filled, area = rects[kept], filled[kept], area[kept]
+    windows = _painted_windows(rects, width, height)
+    painted = (windows[:, 2] >= windows[:, 0]) & (windows[:, 3] >= windows[:, 1])
+    outlined = painted & (area > 0.05 * page_area) & ~filled
+    _fill_windows(mask, windows[painted & ~outlined])
+    for index, (x0, y0, x1, y1) in zip(np.flatnonzero(outlined).tolist(), windows[outlined].tolist()):
+        _outline(mask, drawings[used[index]], x0, y0, x1, y1)
+    return used, rects
 
 
 def group_ink(bounds: pymupdf.Rect, drawings: list[dict], pictures: list[pymupdf.Rect],
               merge_pt: float = PATH_MERGE_PT, only: list[int] | None = None) -> list[Region]:
     """Paths and pictures within merge_pt of each other, as regions (box = their ink).
 
-    only: restrict to these drawing indices (a second, wider grouping of scattered pieces)."""
+    only: restrict to these drawing indices (a second, wider grouping of scattered pieces).
+    The paths' geometry is read into arrays once: a scatter plot's page has tens of thousands."""
     width = int(bounds.width * MASK_PX_PER_PT) + 2
     height = int(bounds.height * MASK_PX_PER_PT) + 2
     mask = np.zeros((height, width), dtype=np.uint8)
-    page_area = bounds.get_area()
-    used = []
-    for index in range(len(drawings)) if only is None else only:
-        drawing = drawings[index]
-        rect = drawing["rect"]
-        if rect.width * rect.height >= BACKGROUND_PAGE_SHARE * page_area and "f" in drawing.get("type", ""):
-            continue  # page background fill
-        _paint(mask, drawing, page_area)
-        used.append(index)
+    candidates = list(range(len(drawings))) if only is None else list(only)
+    used, rects = _paint_paths(mask, drawings, candidates, bounds.get_area())
     for rect in pictures:
         s = MASK_PX_PER_PT
         mask[int(max(rect.y0 * s, 0)):int(rect.y1 * s) + 1, int(max(rect.x0 * s, 0)):int(rect.x1 * s) + 1] = 1
@@ -148,13 +221,17 @@ def group_ink(bounds: pymupdf.Rect, drawings: list[dict], pictures: list[pymupdf
     grown = cv2.dilate(mask, cv2.getStructuringElement(cv2.MORPH_RECT, (2 * radius + 1, 2 * radius + 1)))
     _, labels = cv2.connectedComponents(grown, connectivity=8)
     regions: dict[int, Region] = {}
-    for index in used:
-        x, y = _anchor(drawings[index])
-        label = int(labels[min(max(y, 0), height - 1), min(max(x, 0), width - 1)])
-        if label == 0:
-            continue
-        region = regions.setdefault(label, Region())
-        region.paths.append(index)
+    if used:
+        anchors = _anchors([drawings[i] for i in used], rects, width, height)
+        xs = np.minimum(np.maximum(anchors[:, 0], 0), width - 1)
+        ys = np.minimum(np.maximum(anchors[:, 1], 0), height - 1)
+        for index, label in zip(used, labels[ys, xs].tolist()):
+            if label == 0:
+                continue
+            region = regions.get(label)
+            if region is None:  # not setdefault: a Region per path would be built for nothing
+                region = regions[label] = Region()
+            region.paths.append(index)
     for index, rect in enumerate(pictures):
         cx, cy = int((rect.x0 + rect.x1) / 2 * MASK_PX_PER_PT), int((rect.y0 + rect.y1) / 2 * MASK_PX_PER_PT)
         label = int(labels[min(max(cy, 0), height - 1), min(max(cx, 0), width - 1)])
@@ -274,8 +351,9 @@ def vector_verdict(region: Region, drawings: list[dict], lines: list[TextLine], 
     if len(text_inside) < 3:
         return "figure"
     ticks = sum(1 for d in inked if _is_tick(d))
-    filled = [d for d in inked if "f" in d.get("type", "") and min(d["rect"].width, d["rect"].height) > 1.0]
-    bars = sum(1 for d in filled if not any(_inside(d["rect"], line.bbox) for line in text_inside))
+    filled = [d for d in inked if "f" in d.get("type", "") and min(_sides(d["rect"])) > 1.0]
+    bars = sum(1 for d in filled for box in (pymupdf.Rect(d["rect"]),)
+               if not any(_inside(box, line.bbox) for line in text_inside))
     if ticks >= 3 or bars >= 2:
         return "figure"  # tick marks along an axis, filled bars without text in them
     return "table"

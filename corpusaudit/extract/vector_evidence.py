@@ -8,7 +8,9 @@ from __future__ import annotations
 
 import contextlib
 import gc
+import itertools
 import math
+from dataclasses import dataclass
 
 import numpy as np
 import pymupdf
@@ -41,106 +43,139 @@ def _colour(value) -> tuple[float, float, float] | None:
     if len(value) == 4:  # CMYK, naive conversion
         c, m, y, k = value
         return ((1 - c) * (1 - k), (1 - m) * (1 - k), (1 - y) * (1 - k))
+    if len(value) == 3:  # the common case, without a generator
+        return (float(value[0]), float(value[1]), float(value[2]))
     return tuple(float(v) for v in value[:3])
 
 
-def _all_path_points(drawings: list[dict], matrix: pymupdf.Matrix) -> list[list[tuple[float, float]]]:
+@dataclass
+class _Items:
+    """Every item of a list of drawings, flat: a page's thousands of paths are read by numpy
+    per kind of item, not item by item."""
+
+    items: list[tuple]
+    ops: np.ndarray  # _OPS code of each item
+    owner: np.ndarray  # index of each item's drawing
+    counts: np.ndarray  # items per drawing
+
+    @classmethod
+    def of(cls, drawings: list[dict]) -> "_Items":
+        items = [item for drawing in drawings for item in drawing["items"]]
+        counts = np.array([len(drawing["items"]) for drawing in drawings], dtype=np.intp)
+        ops = np.fromiter(map(_OPS.get, [item[0] for item in items], itertools.repeat(_OTHER)), np.intp, len(items))
+        return cls(items, ops, np.repeat(np.arange(len(drawings)), counts), counts)
+
+    def per_drawing(self, flags: np.ndarray) -> np.ndarray:
+        """How many items of each drawing have the flag."""
+        return np.bincount(self.owner, weights=flags, minlength=len(self.counts)).astype(np.intp)
+
+    def coordinates(self, op: int) -> np.ndarray:
+        """The coordinates of the items of one kind, flat in their order: a line's two points, a
+        curve's four, a rect's x0, y0, x1, y1, a quad's corners ul, ur, ll, lr."""
+        chosen = itertools.compress(self.items, self.ops == op)
+        if op == _CURVE:  # unpacked in place: a scatter plot has hundreds of thousands of these
+            values = [v for _, (a, b), (c, d), (e, f), (g, h) in chosen for v in (a, b, c, d, e, f, g, h)]
+        elif op == _LINE:
+            values = [v for _, (a, b), (c, d) in chosen for v in (a, b, c, d)]
+        elif op == _RECT:
+            values = [v for item in chosen for v in item[1]]
+        else:
+            values = [v for item in chosen for point in item[1] for v in point]
+        return np.array(values, dtype=np.float64)
+
+
+_LINE, _CURVE, _RECT, _QUAD, _OTHER = range(5)
+_OPS = {"l": _LINE, "c": _CURVE, "re": _RECT, "qu": _QUAD}
+_VERTICES = np.array([2, 1, 4, 4, 0])  # per item kind; a curve adds its samples to its start point
+
+
+def rect_columns(drawings: list[dict]) -> np.ndarray:
+    """The drawings' rects as an n x 4 array (tuples from get_cdrawings, or Rects)."""
+    return np.array([tuple(drawing["rect"]) for drawing in drawings], dtype=np.float64).reshape(-1, 4)
+
+
+def _longer_sides(rects: np.ndarray) -> np.ndarray:
+    """max(Rect.width, Rect.height) of each rect; Rect's sides are max(0, x1 - x0)."""
+    width, height = rects[:, 2] - rects[:, 0], rects[:, 3] - rects[:, 1]
+    width, height = np.where(width > 0, width, 0.0), np.where(height > 0, height, 0.0)
+    return np.where(height > width, height, width)
+
+
+def _all_path_points(drawings: list[dict], matrix: pymupdf.Matrix, items: _Items) -> list[list[tuple[float, float]]]:
     """Each drawing's vertices through matrix, curves sampled, repeated points dropped.
 
-    All drawings of a region go through numpy together: a scatter plot is thousands of tiny
-    drawings of four curves each, too many for per-curve arithmetic in Python. An affine map
-    commutes with Bezier evaluation, so control points are transformed first. Curves of
-    drawings smaller than SMALL_DRAWING_PX (markers, glyph outlines) get MARKER_SAMPLES points:
-    their shape is a few pixels, and their points are most of a scatter plot's.
+    Every vertex of every drawing goes through numpy together, in one array laid out as the
+    drawings list them (a curve's start point, then the slots of its samples): a scatter plot
+    is thousands of tiny drawings of four curves each, too many for per-curve arithmetic in
+    Python. An affine map commutes with Bezier evaluation, so control points are transformed
+    first. Curves of drawings smaller than SMALL_DRAWING_PX (markers, glyph outlines) get
+    MARKER_SAMPLES points: their shape is a few pixels, and their points are most of a
+    scatter plot's. A rectangle's corners are kept even where they repeat.
     """
     scale = math.sqrt(abs(matrix.a * matrix.d - matrix.b * matrix.c))
-    raw: list[float] = []  # x, y of each vertex in page points (flat: numpy reads floats faster than pairs)
-    keep_repeat: list[int] = []  # indices of rectangle corners, kept even when repeated
-    curves = {CURVE_SAMPLES: ([], []), MARKER_SAMPLES: ([], [])}  # samples -> (flat control points, slots)
-    starts: list[int] = []
-    for drawing in drawings:
-        starts.append(len(raw) // 2)
-        rect = drawing["rect"]
-        samples = MARKER_SAMPLES if max(rect.width, rect.height) * scale < SMALL_DRAWING_PX else CURVE_SAMPLES
-        controls, slots = curves[samples]
-        placeholder = [0.0] * (2 * samples)
-        for item in drawing["items"]:
-            op = item[0]
-            if op == "l":
-                raw += (item[1][0], item[1][1], item[2][0], item[2][1])
-            elif op == "c":
-                p0, p1, p2, p3 = item[1:5]
-                raw += (p0[0], p0[1])
-                slots.append(len(raw) // 2)
-                controls += (p0[0], p0[1], p1[0], p1[1], p2[0], p2[1], p3[0], p3[1])
-                raw += placeholder
-            elif op == "re":
-                box = item[1]
-                first = len(raw) // 2
-                keep_repeat += range(first, first + 4)
-                raw += (box.x0, box.y0, box.x1, box.y0, box.x1, box.y1, box.x0, box.y1)
-            elif op == "qu":
-                quad = item[1]
-                for corner in (quad.ul, quad.ur, quad.lr, quad.ll):
-                    raw += (corner.x, corner.y)
-    if not raw:
+    small = _longer_sides(rect_columns(drawings)) * scale < SMALL_DRAWING_PX
+    samples = np.where(small, MARKER_SAMPLES, CURVE_SAMPLES)[items.owner]
+    ops = items.ops
+    vertices = _VERTICES[ops] + np.where(ops == _CURVE, samples, 0)
+    first = np.concatenate([[0], np.cumsum(vertices)])  # each item's first vertex
+    total = int(first[-1])
+    if total == 0:
         return [[] for _ in drawings]
+    starts = np.concatenate([[0], np.cumsum(items.per_drawing(vertices))])  # each drawing's first vertex
+    raw = np.zeros((total, 2))
+    lines = items.coordinates(_LINE).reshape(-1, 2, 2)
+    raw[first[:-1][ops == _LINE][:, None] + np.arange(2)] = lines
+    controls = items.coordinates(_CURVE).reshape(-1, 4, 2)
+    curve_first = first[:-1][ops == _CURVE]
+    raw[curve_first] = controls[:, 0]
+    boxes = items.coordinates(_RECT).reshape(-1, 4)
+    x0, y0, x1, y1 = boxes.T
+    x0, x1 = np.where(x1 < x0, x1, x0), np.where(x1 < x0, x0, x1)  # Rect.normalize
+    y0, y1 = np.where(y1 < y0, y1, y0), np.where(y1 < y0, y0, y1)
+    corners = first[:-1][ops == _RECT][:, None] + np.arange(4)
+    raw[corners] = np.stack([x0, y0, x1, y0, x1, y1, x0, y1], axis=1).reshape(-1, 4, 2)
+    quads = items.coordinates(_QUAD).reshape(-1, 4, 2)  # ul, ur, ll, lr
+    raw[first[:-1][ops == _QUAD][:, None] + np.arange(4)] = quads[:, [0, 1, 3, 2]]
     affine = np.array([[matrix.a, matrix.b], [matrix.c, matrix.d]])
     shift = np.array([matrix.e, matrix.f])
-    points = np.array(raw, dtype=np.float64).reshape(-1, 2) @ affine + shift
-    for samples, (controls, slots) in curves.items():
-        if controls:
-            control = np.array(controls, dtype=np.float64).reshape(-1, 4, 2) @ affine + shift
-            sampled = np.einsum("tk,nkd->ntd", _BEZIER_WEIGHTS[samples], control)
-            points[np.array(slots)[:, None] + np.arange(samples)] = sampled
+    points = raw @ affine + shift
+    curve_samples = samples[ops == _CURVE]
+    for count in (CURVE_SAMPLES, MARKER_SAMPLES):
+        chosen = curve_samples == count
+        if chosen.any():
+            control = controls[chosen] @ affine + shift
+            sampled = np.einsum("tk,nkd->ntd", _BEZIER_WEIGHTS[count], control)
+            points[(curve_first[chosen] + 1)[:, None] + np.arange(count)] = sampled
     keep = np.ones(len(points), dtype=bool)
     keep[1:] = (points[1:] != points[:-1]).any(axis=1)
-    keep[keep_repeat] = True
-    keep[starts] = True  # a drawing's first vertex has nothing before it
-    bounds = np.searchsorted(np.flatnonzero(keep), starts + [len(points)])
-    kept = list(map(tuple, points[keep].tolist()))
+    keep[corners.ravel()] = True
+    keep[starts[:-1]] = True  # a drawing's first vertex has nothing before it
+    bounds = np.searchsorted(np.flatnonzero(keep), starts).tolist()
+    kept = points[keep]
+    kept = list(zip(kept[:, 0].tolist(), kept[:, 1].tolist()))
     return [kept[bounds[i]:bounds[i + 1]] for i in range(len(drawings))]
 
 
-def fast_rect(x0: float, y0: float, x1: float, y1: float) -> pymupdf.Rect:
-    """pymupdf.Rect(x0, y0, x1, y1) without its general argument parsing, about eight times
-    faster: a scatter plot's page has tens of thousands of paths, each with rects."""
-    rect = pymupdf.Rect.__new__(pymupdf.Rect)
-    rect.x0, rect.y0, rect.x1, rect.y1 = float(x0), float(y0), float(x1), float(y1)
-    return rect
-
-
-_PATH_KEYS = ("closePath", "fill", "color", "width", "lineCap", "lineJoin", "dashes", "stroke_opacity",
-              "fill_opacity", "even_odd")
-
-
 def read_drawings(page: pymupdf.Page, extended: bool = False) -> list[dict]:
-    """The page's paths as Page.get_drawings gives them, except that line and curve points stay
-    (x, y) tuples: a scatter plot's thousands of markers are hundreds of thousands of points, and
-    making each a Point object costs more than reading the page. Rects, quads, clip scissors and
-    path boxes are converted as get_drawings does; code reads points by index, so either works."""
-    drawings = page.get_cdrawings(extended=extended)
-    for drawing in drawings:
-        kind = drawing["type"]
-        if kind.startswith("clip"):
-            drawing["scissor"] = fast_rect(*drawing["scissor"])
-        else:
-            drawing["rect"] = fast_rect(*drawing["rect"])
-        if kind != "group":
-            drawing["items"] = [("re", fast_rect(*item[1]).normalize(), item[2]) if item[0] == "re"
-                                else ("qu", pymupdf.Quad(item[1])) if item[0] == "qu" else item
-                                for item in drawing["items"]]
-        if kind in ("f", "s"):
-            for key in _PATH_KEYS:
-                drawing.setdefault(key, None)
-    return drawings
+    """The page's paths as Page.get_cdrawings gives them: rects, points and quads stay tuples
+    (a scatter plot's thousands of markers are hundreds of thousands of points, and making each
+    a Rect or Point object costs more than reading the page). Keys that get_drawings would add
+    as None may be missing. Code here reads them by index and with get, so the output of
+    get_drawings works as well; a "re" item's rect may not be normalized, a "qu" item is the
+    tuple of its corners ul, ur, ll, lr."""
+    return page.get_cdrawings(extended=extended)
+
+
+def is_rectangular_quad(quad) -> bool:
+    """Quad.is_rectangular of a "qu" item's quad (a Quad, or get_cdrawings' tuple of corners)."""
+    return bool(pymupdf.Quad(quad).is_rectangular)
 
 
 def _is_rect(items) -> bool:
     if len(items) == 1 and items[0][0] == "re":
         return True
     if len(items) == 1 and items[0][0] == "qu":
-        return bool(items[0][1].is_rectangular)
+        return is_rectangular_quad(items[0][1])
     if all(item[0] == "l" for item in items) and 3 <= len(items) <= 4:
         corners = {(round(p[0], 2), round(p[1], 2)) for item in items for p in item[1:3]}
         xs = {x for x, _ in corners}
@@ -162,6 +197,18 @@ def _box(rect, matrix: pymupdf.Matrix) -> tuple[float, float, float, float]:
     xs = (x0 * a + y0 * c + e, x1 * a + y1 * c + e)
     ys = (x0 * b + y0 * d + f, x1 * b + y1 * d + f)
     return (min(xs), min(ys), max(xs), max(ys))
+
+
+def _boxes(rects: np.ndarray, matrix: pymupdf.Matrix) -> list[tuple[float, float, float, float]]:
+    """_box of every row of rects, by the same arithmetic (min and max keep the first of equals)."""
+    a, b, c, d, e, f = matrix
+    x0, y0, x1, y1 = rects.T
+    first_x, second_x = x0 * a + y0 * c + e, x1 * a + y1 * c + e
+    first_y, second_y = x0 * b + y0 * d + f, x1 * b + y1 * d + f
+    return list(zip(np.where(second_x < first_x, second_x, first_x).tolist(),
+                    np.where(second_y < first_y, second_y, first_y).tolist(),
+                    np.where(second_x > first_x, second_x, first_x).tolist(),
+                    np.where(second_y > first_y, second_y, first_y).tolist()))
 
 
 @contextlib.contextmanager
@@ -186,20 +233,28 @@ def path_items(drawings: list[dict], matrix: pymupdf.Matrix, scale: float) -> li
 
 def _path_items(drawings: list[dict], matrix: pymupdf.Matrix, scale: float) -> list[PathItem]:
     inked = [d for d in drawings if d.get("type") in ("f", "s", "fs")]  # clip paths and groups carry no ink
+    items = _Items.of(inked)
+    ops, counts = items.ops, items.counts
+    # a rectangle operator draws a closed subpath (square markers are often one)
+    rectangle_operators = items.per_drawing((ops == _RECT) | (ops == _QUAD)) > 0
+    only_lines = items.per_drawing(ops == _LINE) == counts
+    single = np.full(len(inked), -1, dtype=np.intp)  # the kind of a drawing's only item
+    single[counts == 1] = ops[np.cumsum(counts)[counts == 1] - 1]
     paths: list[PathItem] = []
-    for drawing, points in zip(inked, _all_path_points(inked, matrix)):
+    for drawing, points, bbox, closed_subpath, op, lines, count in zip(
+            inked, _all_path_points(inked, matrix, items), _boxes(rect_columns(inked), matrix),
+            rectangle_operators.tolist(), single.tolist(), only_lines.tolist(), counts.tolist()):
         kind = drawing["type"]
         paths.append(PathItem(
             kind=kind,
-            bbox=_box(drawing["rect"], matrix),
+            bbox=bbox,
             fill=_colour(drawing.get("fill")) if "f" in kind else None,
             stroke=_colour(drawing.get("color")) if "s" in kind else None,
             width=float(drawing.get("width") or 0.0) * scale,
             points=points,
-            # a rectangle operator draws a closed subpath (square markers are often one)
-            closed=bool(drawing.get("closePath")) or (len(points) > 2 and points[0] == points[-1])
-            or any(item[0] in ("re", "qu") for item in drawing["items"]),
-            is_rect=_is_rect(drawing["items"]),
+            closed=bool(drawing.get("closePath")) or (len(points) > 2 and points[0] == points[-1]) or closed_subpath,
+            # a lone rect is one; _is_rect looks at the others that may be (a quad, three or four lines)
+            is_rect=op == _RECT or (op == _QUAD or lines and 3 <= count <= 4) and _is_rect(drawing["items"]),
             dashes=str(drawing.get("dashes") or ""),
             # 0.0 is a real opacity (invisible ink); only a missing value means opaque
             fill_opacity=1.0 if drawing.get("fill_opacity") is None else float(drawing["fill_opacity"]),
@@ -308,8 +363,9 @@ def vector_evidence(page: pymupdf.Page, clip: pymupdf.Rect, scale: float, drawin
     if drawings is None:
         drawings = read_drawings(page)
     # Compare coordinates: axis lines have zero-height rects, which Rect.intersects rejects.
-    inside = [d for d in drawings if d["rect"].x0 <= clip.x1 and d["rect"].x1 >= clip.x0
-              and d["rect"].y0 <= clip.y1 and d["rect"].y1 >= clip.y0]
+    x0, y0, x1, y1 = clip
+    inside = [d for d in drawings for rect in (d["rect"],)
+              if rect[0] <= x1 and rect[2] >= x0 and rect[1] <= y1 and rect[3] >= y0]
     matrix = figure_matrix(page, clip, scale)
     return VectorEvidence(texts=text_spans(page, clip, scale, text, runs),
                           paths=path_items(inside, matrix, scale), scale=scale)

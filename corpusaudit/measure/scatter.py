@@ -16,9 +16,8 @@ import cv2
 import numpy as np
 
 from corpusaudit.measure import measurement
-from corpusaudit.measure.legend import in_any
-from corpusaudit.measure.shapes import background_rgb, colour_distance, component_stats, intersect, is_vector, require_pixels
-from corpusaudit.model import BBox, Figure, MeasurementUnavailable
+from corpusaudit.measure.shapes import background_rgb, colour_distance, component_stats, is_vector, require_pixels
+from corpusaudit.model import BBox, Figure, MeasurementUnavailable, PathItem
 
 
 @dataclass(frozen=True)
@@ -31,18 +30,31 @@ class Markers:
     dense_region: BBox | None  # where most overlap is
 
 
+def _marker_candidates(paths: list[PathItem], plot: BBox, frames: list[BBox], size: float) -> list[BBox]:
+    """Boxes of the paths that may be markers: closed, 1 px to size across (a filled rectangle
+    larger than that is no marker either), in the plot area and outside legend frames. All paths
+    are tested at once, by the comparisons intersect and in_any make (a scatter plot has
+    thousands of paths)."""
+    if not paths:
+        return []
+    x0, y0, x1, y1 = np.array([path.bbox for path in paths], dtype=np.float64).reshape(-1, 4).T
+    closed = np.array([path.closed for path in paths], dtype=bool)
+    filled_rect = np.array([bool(path.is_rect and "f" in path.kind) for path in paths], dtype=bool)
+    width, height = x1 - x0, y1 - y0
+    across = np.where(height > width, height, width)  # max(width, height)
+    keep = closed & ~(filled_rect & (across > size)) & ~((across > size) | (across < 1.0))
+    # intersect(bbox, plot) is not None: max() and min() keep the first of equals
+    left, top = np.where(plot[0] > x0, plot[0], x0), np.where(plot[1] > y0, plot[1], y0)
+    right, bottom = np.where(plot[2] < x1, plot[2], x1), np.where(plot[3] < y1, plot[3], y1)
+    keep &= (right > left) & (bottom > top)
+    for frame in frames:  # in_any: contains(frame, bbox, tolerance=1.0)
+        keep &= ~((x0 >= frame[0] - 1.0) & (y0 >= frame[1] - 1.0) & (x1 <= frame[2] + 1.0) & (y1 <= frame[3] + 1.0))
+    return [paths[i].bbox for i in np.flatnonzero(keep).tolist()]
+
+
 def _vector_markers(figure: Figure, plot: BBox, frames: list[BBox]) -> Markers:
     size = 0.06 * max(plot[2] - plot[0], plot[3] - plot[1])
-    boxes = []
-    for path in figure.vector.paths:
-        x0, y0, x1, y1 = path.bbox
-        if not path.closed or path.is_rect and "f" in path.kind and max(x1 - x0, y1 - y0) > size:
-            continue
-        if max(x1 - x0, y1 - y0) > size or max(x1 - x0, y1 - y0) < 1.0:
-            continue
-        if intersect(path.bbox, plot) is None or in_any(path.bbox, frames):
-            continue
-        boxes.append(path.bbox)
+    boxes = _marker_candidates(figure.vector.paths, plot, frames, size)
     if len(boxes) < 3:
         raise MeasurementUnavailable("fewer than three markers found")
     array = np.array(boxes)
@@ -52,15 +64,17 @@ def _vector_markers(figure: Figure, plot: BBox, frames: list[BBox]) -> Markers:
     width, height = int((plot[2] - plot[0] + 4 * radii.max()) * scale) + 2, int((plot[3] - plot[1] + 4 * radii.max()) * scale) + 2
     origin = np.array([plot[0] - 2 * radii.max(), plot[1] - 2 * radii.max()])
     canvas = np.zeros((height, width), np.uint8)
-    own = 0.0
-    for (cx, cy), r in zip(centres, radii):
-        centre = tuple(int(round(v)) for v in ((np.array([cx, cy]) - origin) * scale))
-        radius = max(1, int(round(r * scale)))
-        cv2.circle(canvas, centre, radius, 1, thickness=-1)
-        own += _disk_pixels(radius)
+    # every marker's centre and radius in canvas pixels at once, rounded half to even as round() does
+    painted = np.rint((centres - origin) * scale).astype(np.int64)
+    disk_radii = np.maximum(1, np.rint(radii * scale).astype(np.int64))
+    for (cx, cy), radius in zip(painted.tolist(), disk_radii.tolist()):
+        cv2.circle(canvas, (cx, cy), radius, 1, thickness=-1)
+    sizes, counts = np.unique(disk_radii, return_counts=True)
+    own = float(sum(_disk_pixels(radius) * count for radius, count in zip(sizes.tolist(), counts.tolist())))
     hidden = max(0.0, 1.0 - canvas.sum() / own)
-    edge = [tuple(b) for b, (cx, cy), r in zip(boxes, centres, radii)
-            if b[0] < plot[0] + 0.5 or b[1] < plot[1] + 0.5 or b[2] > plot[2] - 0.5 or b[3] > plot[3] - 0.5]
+    on_edge = (array[:, 0] < plot[0] + 0.5) | (array[:, 1] < plot[1] + 0.5) | (array[:, 2] > plot[2] - 0.5) | \
+        (array[:, 3] > plot[3] - 0.5)
+    edge = [tuple(boxes[i]) for i in np.flatnonzero(on_edge).tolist()]
     return Markers(count=len(boxes), radius=float(np.median(radii)), hidden_share=float(hidden),
                    edge_count=len(edge), edge_boxes=tuple(edge), dense_region=_dense_region(centres, plot))
 

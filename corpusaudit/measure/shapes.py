@@ -75,15 +75,18 @@ def axis_aligned_segment(path: PathItem, tolerance: float = 0.5) -> str | None:
 
 
 def polyline_length(points: list[tuple[float, float]]) -> float:
-    """Length along the vertices. Plain Python: paths are short and a figure may hold thousands."""
-    return sum((math.hypot(x1 - x0, y1 - y0) for (x0, y0), (x1, y1) in zip(points, points[1:])), 0.0)
+    """Length along the vertices. Plain Python: paths are short and a figure may hold thousands
+    (a list, not a generator, for sum: the same additions in the same order, without resuming
+    a generator per vertex)."""
+    return sum([math.hypot(x1 - x0, y1 - y0) for (x0, y0), (x1, y1) in zip(points, points[1:])], 0.0)
 
 
 def polygon_area(points: list[tuple[float, float]]) -> float:
-    """Shoelace area. Plain Python: paths are short and a figure may hold thousands of them."""
+    """Shoelace area. Plain Python: paths are short and a figure may hold thousands of them
+    (summed from a list as polyline_length is)."""
     if len(points) < 3:
         return 0.0
-    twice = sum(x0 * y1 - x1 * y0 for (x0, y0), (x1, y1) in zip(points, points[1:] + points[:1]))
+    twice = sum([x0 * y1 - x1 * y0 for (x0, y0), (x1, y1) in zip(points, points[1:] + points[:1])])
     return abs(twice) / 2.0
 
 
