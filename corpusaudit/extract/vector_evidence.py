@@ -234,16 +234,13 @@ def path_items(drawings: list[dict], matrix: pymupdf.Matrix, scale: float) -> li
 def _path_items(drawings: list[dict], matrix: pymupdf.Matrix, scale: float) -> list[PathItem]:
     inked = [d for d in drawings if d.get("type") in ("f", "s", "fs")]  # clip paths and groups carry no ink
     items = _Items.of(inked)
-    ops, counts = items.ops, items.counts
+    ops = items.ops
     # a rectangle operator draws a closed subpath (square markers are often one)
     rectangle_operators = items.per_drawing((ops == _RECT) | (ops == _QUAD)) > 0
-    only_lines = items.per_drawing(ops == _LINE) == counts
-    single = np.full(len(inked), -1, dtype=np.intp)  # the kind of a drawing's only item
-    single[counts == 1] = ops[np.cumsum(counts)[counts == 1] - 1]
     paths: list[PathItem] = []
-    for drawing, points, bbox, closed_subpath, op, lines, count in zip(
+    for drawing, points, bbox, closed_subpath in zip(
             inked, _all_path_points(inked, matrix, items), _boxes(rect_columns(inked), matrix),
-            rectangle_operators.tolist(), single.tolist(), only_lines.tolist(), counts.tolist()):
+            rectangle_operators.tolist()):
         kind = drawing["type"]
         paths.append(PathItem(
             kind=kind,
@@ -253,8 +250,7 @@ def _path_items(drawings: list[dict], matrix: pymupdf.Matrix, scale: float) -> l
             width=float(drawing.get("width") or 0.0) * scale,
             points=points,
             closed=bool(drawing.get("closePath")) or (len(points) > 2 and points[0] == points[-1]) or closed_subpath,
-            # a lone rect is one; _is_rect looks at the others that may be (a quad, three or four lines)
-            is_rect=op == _RECT or (op == _QUAD or lines and 3 <= count <= 4) and _is_rect(drawing["items"]),
+            is_rect=_is_rect(drawing["items"]),
             dashes=str(drawing.get("dashes") or ""),
             # 0.0 is a real opacity (invisible ink); only a missing value means opaque
             fill_opacity=1.0 if drawing.get("fill_opacity") is None else float(drawing["fill_opacity"]),

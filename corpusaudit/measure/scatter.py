@@ -31,18 +31,16 @@ class Markers:
 
 
 def _marker_candidates(paths: list[PathItem], plot: BBox, frames: list[BBox], size: float) -> list[BBox]:
-    """Boxes of the paths that may be markers: closed, 1 px to size across (a filled rectangle
-    larger than that is no marker either), in the plot area and outside legend frames. All paths
-    are tested at once, by the comparisons intersect and in_any make (a scatter plot has
-    thousands of paths)."""
+    """Boxes of the paths that may be markers: closed, 1 px to size across, in the plot area
+    and outside legend frames. All paths are tested at once, by the comparisons intersect and
+    in_any make (a scatter plot has thousands of paths)."""
     if not paths:
         return []
     x0, y0, x1, y1 = np.array([path.bbox for path in paths], dtype=np.float64).reshape(-1, 4).T
     closed = np.array([path.closed for path in paths], dtype=bool)
-    filled_rect = np.array([bool(path.is_rect and "f" in path.kind) for path in paths], dtype=bool)
     width, height = x1 - x0, y1 - y0
     across = np.where(height > width, height, width)  # max(width, height)
-    keep = closed & ~(filled_rect & (across > size)) & ~((across > size) | (across < 1.0))
+    keep = closed & ~((across > size) | (across < 1.0))
     # intersect(bbox, plot) is not None: max() and min() keep the first of equals
     left, top = np.where(plot[0] > x0, plot[0], x0), np.where(plot[1] > y0, plot[1], y0)
     right, bottom = np.where(plot[2] < x1, plot[2], x1), np.where(plot[3] < y1, plot[3], y1)
